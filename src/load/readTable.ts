@@ -25,8 +25,11 @@ import type { RowLedger } from './ledger.js';
 
 /** What the reader tells the consumer. */
 export interface TableSink {
-  /** Called once with the header's fields; may throw an InputError for a bad header. */
-  header(fields: string[], line: number): void;
+  /**
+   * Called once with the header's fields and any `#` metadata lines before it;
+   * may throw an InputError for a bad header.
+   */
+  header(fields: string[], line: number, metadataLines: string[]): void;
   /** Called for every record whose fields passed the reader's checks. */
   row(fields: string[], line: number): void;
 }
@@ -242,7 +245,7 @@ export async function readTable(path: string, ledger: RowLedger, sink: TableSink
     headerFields = fields.map((f) => f.trim());
     headerCount = fields.length;
     headerLine = lineNo;
-    sink.header(headerFields, lineNo);
+    sink.header(headerFields, lineNo, metadataLines);
   };
 
   const handleRecordLine = (line: string, literalQuotes: boolean): void => {

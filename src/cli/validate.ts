@@ -1,0 +1,45 @@
+/** `termdrift validate FILE --kind K`: check one input file and print every problem found. */
+import { loadAny, TABLE_KINDS, type TableKind } from '../load/index.js';
+import { parseColumnsOption } from '../load/columns.js';
+import { RELEASE_COLUMNS } from '../load/loadRelease.js';
+import { MAPPING_COLUMNS } from '../load/loadMappings.js';
+import { HIERARCHY_COLUMNS } from '../load/loadHierarchy.js';
+import { HISTORY_COLUMNS } from '../load/loadHistory.js';
+import { UsageError } from '../errors.js';
+import { formatAccounting, formatDiagnostic } from '../render/diagnostics.js';
+import { exitCodeFor, type ExitCode } from './exitCode.js';
+
+export const COLUMNS_BY_KIND: Record<TableKind, readonly { name: string }[]> = {
+  release: RELEASE_COLUMNS,
+  mapping: MAPPING_COLUMNS,
+  hierarchy: HIERARCHY_COLUMNS,
+  history: HISTORY_COLUMNS,
+};
+
+export function parseKind(value: string): TableKind {
+  if (!(TABLE_KINDS as readonly string[]).includes(value)) {
+    throw new UsageError(`--kind must be one of ${TABLE_KINDS.join(', ')}; got "${value}"`, 'e.g. --kind release');
+  }
+  return value as TableKind;
+}
+
+export interface ValidateOptions {
+  kind: string;
+  columns?: string;
+  format?: string;
+}
+
+export async function runValidate(file: string, opts: ValidateOptions, out: (s: string) => void): Promise<ExitCode> {
+  const kind = parseKind(opts.kind);
+  const columns = parseColumnsOption(opts.columns, COLUMNS_BY_KIND[kind].map((c) => c.name));
+  const loaded = await loadAny(kind, file, columns);
+  if (opts.format === 'json') {
+    out(JSON.stringify({ file, kind, sha256: loaded.sha256, accounting: loaded.accounting, diagnostics: loaded.diagnostics }, null, 2));
+  } else {
+    for (const d of loaded.diagnostics) out(formatDiagnostic(d));
+    const warnings = loaded.diagnostics.filter((d) => !d.rejected).length;
+    out(formatAccounting(loaded.accounting) + (warnings ? `; ${warnings} warning${warnings === 1 ? '' : 's'}` : ''));
+    out(loaded.accounting.rejected === 0 ? `${file}: valid ${kind} table` : `${file}: ${loaded.accounting.rejected} row${loaded.accounting.rejected === 1 ? '' : 's'} rejected; fix them and validate again`);
+  }
+  return exitCodeFor({ rejectedRows: loaded.accounting.rejected, strictRows: true });
+}

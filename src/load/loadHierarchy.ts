@@ -1,0 +1,47 @@
+/**
+ * loadHierarchy: read `concept_id,parent_id` rows into child → parents lists.
+ * Empty values and duplicate edges are rejected rows; a self-loop is rejected too (a concept
+ * cannot be its own parent). Longer cycles are found later, where the hierarchy is walked.
+ */
+import { RowLedger, quoteValue } from './ledger.js';
+import { readTable } from './readTable.js';
+import { resolveColumns, type ColumnRenames } from './columns.js';
+import { clean } from './growable.js';
+import type { Hierarchy } from './types.js';
+
+export const HIERARCHY_COLUMNS = [
+  { name: 'concept_id', required: true },
+  { name: 'parent_id', required: true },
+] as const;
+
+export async function loadHierarchy(path: string, options: { columns?: ColumnRenames } = {}): Promise<Hierarchy> {
+  const ledger = new RowLedger(path);
+  const parents = new Map<string, string[]>();
+  const firstLine = new Map<string, number>();
+  let ci = -1;
+  let pi = -1;
+  let edgeCount = 0;
+  const info = await readTable(path, ledger, {
+    header(fields, line) {
+      const r = resolveColumns(path, fields, line, HIERARCHY_COLUMNS, options.columns);
+      ci = r.index.concept_id;
+      pi = r.index.parent_id;
+    },
+    row(f, line) {
+      const child = clean(f[ci]);
+      const parent = clean(f[pi]);
+      if (child === '') return void ledger.reject(line, ci + 1, 'empty_required', 'concept_id is empty', 'give the child concept');
+      if (parent === '') return void ledger.reject(line, pi + 1, 'empty_required', `parent_id is empty for ${quoteValue(child)}`, 'give the parent concept, or drop the row for a top concept');
+      if (child === parent) return void ledger.reject(line, pi + 1, 'bad_value', `${quoteValue(child)} is given as its own parent`, 'remove the self-loop');
+      const key = `${child}\u0001${parent}`;
+      const seen = firstLine.get(key);
+      if (seen !== undefined) return void ledger.reject(line, 1, 'duplicate_row', `duplicate of line ${seen}: ${quoteValue(child)} → ${quoteValue(parent)}`, 'remove the duplicate row');
+      firstLine.set(key, line);
+      const list = parents.get(child);
+      if (list) list.push(parent);
+      else parents.set(child, [parent]);
+      edgeCount++;
+    },
+  });
+  return { path, sha256: info.sha256, accounting: ledger.finish(), diagnostics: ledger.diagnostics, parents, edgeCount };
+}
