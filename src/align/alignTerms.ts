@@ -1,0 +1,167 @@
+/**
+ * alignTerms: find the changed frontier of two releases and identify its terms across them.
+ *
+ * 1. Concepts present in both releases with the same status, category and active terms
+ *    (text, type, language) are unchanged and skipped; the rest form the frontier.
+ * 2. Frontier terms are matched level by level, each level only among the terms still
+ *    unmatched: term_id (when both releases carry one), exact text, folded text, lexical key
+ *    (see text/normalize.ts). Within a level a term first looks in the concept with its own
+ *    identifier if that concept is still active, then in other active concepts of the same
+ *    category, then in its own concept if it became inactive. A cross-concept match needs the
+ *    same category when both releases give categories: two strings that normalize alike but
+ *    belong to different categories are not the same term (common practice in terminology
+ *    maintenance).
+ * Each new term is matched at most once, so flows count terms, not string coincidences.
+ */
+import type { Release } from '../load/types.js';
+import { ACTIVE } from '../load/types.js';
+import { foldTerm, lexicalKey, type MatchLevel } from '../text/normalize.js';
+import type { Alignment, TermLink } from './types.js';
+
+/** Active terms of concept c, in file order. */
+export function activeTerms(r: Release, c: number): number[] {
+  const out: number[] = [];
+  for (let k = r.conceptTermStart[c]; k < r.conceptTermStart[c + 1]; k++) {
+    const t = r.conceptTerms[k];
+    if (r.termStatus[t] === ACTIVE) out.push(t);
+  }
+  return out;
+}
+
+function categoryOf(r: Release, c: number): string {
+  const i = r.conceptCategory[c];
+  return i < 0 ? '' : r.categories[i];
+}
+
+function langOf(r: Release, t: number): string {
+  const i = r.termLanguage[t];
+  return i < 0 ? '' : r.languages[i];
+}
+
+/** Same status, category and active term list (as a multiset of text+type+language). */
+function sameConcept(a: Release, ca: number, b: Release, cb: number): boolean {
+  if (a.conceptStatus[ca] !== b.conceptStatus[cb]) return false;
+  if (categoryOf(a, ca) !== categoryOf(b, cb)) return false;
+  const ta = activeTerms(a, ca);
+  const tb = activeTerms(b, cb);
+  if (ta.length !== tb.length) return false;
+  const key = (r: Release, t: number) => `${r.termTypes[r.termType[t]]}\u0001${langOf(r, t)}\u0001${r.termText[t]}`;
+  let inOrder = true;
+  for (let i = 0; i < ta.length; i++) {
+    if (a.termText[ta[i]] !== b.termText[tb[i]] || key(a, ta[i]) !== key(b, tb[i])) { inOrder = false; break; }
+  }
+  if (inOrder) return true;
+  const ka = ta.map((t) => key(a, t)).sort();
+  const kb = tb.map((t) => key(b, t)).sort();
+  return ka.every((k, i) => k === kb[i]);
+}
+
+export interface AlignOptions {
+  /** Require the same category for matches across concepts (default true). */
+  categoryGuard?: boolean;
+}
+
+export function alignTerms(oldR: Release, newR: Release, options: AlignOptions = {}): Alignment {
+  const guard = options.categoryGuard ?? true;
+  const sameId = new Int32Array(oldR.conceptCount).fill(-1);
+  const newHasOld = new Uint8Array(newR.conceptCount);
+  const oldFrontier: number[] = [];
+  const newFrontier: number[] = [];
+  const newInFrontier = new Uint8Array(newR.conceptCount);
+  let unchanged = 0;
+  for (let c = 0; c < oldR.conceptCount; c++) {
+    const n = newR.conceptIndex.get(oldR.conceptIds[c]);
+    if (n === undefined) {
+      oldFrontier.push(c);
+      continue;
+    }
+    sameId[c] = n;
+    newHasOld[n] = 1;
+    if (sameConcept(oldR, c, newR, n)) unchanged++;
+    else {
+      oldFrontier.push(c);
+      newFrontier.push(n);
+      newInFrontier[n] = 1;
+    }
+  }
+  for (let n = 0; n < newR.conceptCount; n++) {
+    if (!newHasOld[n]) {
+      newFrontier.push(n);
+      newInFrontier[n] = 1;
+    }
+  }
+  newFrontier.sort((x, y) => x - y);
+
+  const linkOfOld = new Int32Array(oldR.termCount).fill(-1);
+  const linkOfNew = new Int32Array(newR.termCount).fill(-1);
+  const links: TermLink[] = [];
+  const levelCounts: Record<MatchLevel, number> = { term_id: 0, exact: 0, folded: 0, lexical: 0 };
+
+  // Concepts already inactive in the old release carry no meaning forward: their terms are not matched.
+  const oldTerms: number[] = [];
+  for (const c of oldFrontier) if (oldR.conceptStatus[c] === ACTIVE) for (const t of activeTerms(oldR, c)) oldTerms.push(t);
+  const newTerms: number[] = [];
+  for (const n of newFrontier) for (const t of activeTerms(newR, n)) newTerms.push(t);
+
+  const link = (o: number, n: number, level: MatchLevel) => {
+    linkOfOld[o] = links.length;
+    linkOfNew[n] = links.length;
+    links.push({ oldTerm: o, newTerm: n, level });
+    levelCounts[level]++;
+  };
+
+  // Level term_id: the publisher's own identity of terms.
+  if (oldR.hasColumn.term_id && newR.hasColumn.term_id) {
+    const byId = new Map<string, number>();
+    for (const t of newTerms) if (newR.termId[t] !== '') byId.set(newR.termId[t], t);
+    for (const t of oldTerms) {
+      const id = oldR.termId[t];
+      if (id === '') continue;
+      const n = byId.get(id);
+      if (n !== undefined && linkOfNew[n] === -1) link(t, n, 'term_id');
+    }
+  }
+
+  const oldCategory = (t: number) => categoryOf(oldR, oldR.termConcept[t]);
+  const newCategory = (t: number) => categoryOf(newR, newR.termConcept[t]);
+  const categoriesGiven = oldR.hasColumn.category && newR.hasColumn.category;
+
+  const matchLevel = (level: MatchLevel, keyOf: (text: string) => string) => {
+    // Unmatched new terms by key, in file order.
+    const byKey = new Map<string, number[]>();
+    for (const t of newTerms) {
+      if (linkOfNew[t] !== -1) continue;
+      const k = keyOf(newR.termText[t]);
+      const list = byKey.get(k);
+      if (list) list.push(t);
+      else byKey.set(k, [t]);
+    }
+    // Three passes so that a term's own concept is always offered it first:
+    // 0 own concept still active, 1 another active concept, 2 own concept now inactive.
+    for (let pass = 0; pass < 3; pass++) {
+      for (const t of oldTerms) {
+        if (linkOfOld[t] !== -1) continue;
+        const list = byKey.get(keyOf(oldR.termText[t]));
+        if (!list) continue;
+        const own = sameId[oldR.termConcept[t]];
+        for (const n of list) {
+          if (linkOfNew[n] !== -1) continue;
+          const nc = newR.termConcept[n];
+          const active = newR.conceptStatus[nc] === ACTIVE;
+          const rank = nc === own ? (active ? 0 : 2) : active ? 1 : -1;
+          if (rank !== pass) continue;
+          if (rank === 1 && guard && categoriesGiven && oldCategory(t) !== newCategory(n)) continue;
+          link(t, n, level);
+          break;
+        }
+      }
+    }
+  };
+  matchLevel('exact', (s) => s);
+  matchLevel('folded', foldTerm);
+  matchLevel('lexical', lexicalKey);
+
+  const removedTerms = oldTerms.filter((t) => linkOfOld[t] === -1);
+  const addedTerms = newTerms.filter((t) => linkOfNew[t] === -1);
+  return { sameId, oldFrontier, newFrontier, links, removedTerms, addedTerms, linkOfOld, linkOfNew, levelCounts, unchangedConcepts: unchanged };
+}

@@ -1,0 +1,56 @@
+/**
+ * retirement: a concept became inactive or disappeared and no concept carries its terms.
+ * Successors are still proposed, in this order of evidence: `consider` rows of the history
+ * table, stray terms that went to other concepts, and lexical neighbours in the new release.
+ */
+import type { Detector } from '../detector.js';
+import { conceptLabel, makeChange, movesOf, rankSuccessors } from '../detector.js';
+import { flowCells, historyEvidence, isActive, resolveHistory, round, type DiffContext, type OldNode } from '../context.js';
+import type { Successor } from '../types.js';
+import { groupsOf } from './structural.js';
+
+export function proposeSuccessors(ctx: DiffContext, o: OldNode): Successor[] {
+  const out: Successor[] = [];
+  const h = ctx.input.history;
+  if (h) {
+    for (const id of resolveHistory(h, ctx.new, o.id, false).targets) {
+      out.push({ concept_id: id, label: conceptLabel(ctx.new, ctx.new.conceptIndex.get(id)!), score: 0.5, reason: 'history_consider' });
+    }
+  }
+  for (const [n, terms] of o.flows) {
+    if (!isActive(ctx.new, n)) continue;
+    out.push({ concept_id: ctx.new.conceptIds[n], label: conceptLabel(ctx.new, n), score: round(terms.length / Math.max(1, o.terms.length)), reason: 'term_flow' });
+  }
+  const texts = o.terms.map((t) => ctx.old.termText[t]);
+  if (texts.length) {
+    const self = ctx.new.conceptIndex.get(o.id) ?? -1;
+    for (const hit of ctx.newIndex().search(texts, ctx.thresholds.maxSuggestions * 2, self)) {
+      if (hit.score < ctx.thresholds.neighbourMin) break;
+      out.push({ concept_id: ctx.new.conceptIds[hit.concept], label: conceptLabel(ctx.new, hit.concept), score: round(hit.score), reason: 'lexical_neighbour' });
+    }
+  }
+  return rankSuccessors(out, ctx.thresholds.maxSuggestions);
+}
+
+export const retirement: Detector<'retirement'> = {
+  kind: 'retirement',
+  detect(ctx) {
+    return groupsOf(ctx, 'retirement').map((g) => {
+      const o = ctx.olds.get(g.olds[0])!;
+      const status = o.fate === 'absent' ? 'absent' : 'inactive';
+      const stray = flowCells(ctx, [o.c], [...o.flows.keys()].filter((n) => n !== ctx.align.sameId[o.c]));
+      const strayShare = stray.reduce((a, s) => a + s.share, 0);
+      const terms = [
+        ...o.removed.map((t) => ({ term: ctx.old.termText[t], from: o.id, to: null, match: null })),
+        ...movesOf(ctx, o),
+      ];
+      return makeChange('retirement', [o.id], [], terms, (status === 'inactive' ? 1 : 0.95) * (1 - strayShare / 2), {
+        status,
+        preferred: o.preferred >= 0 ? ctx.old.termText[o.preferred] : '',
+        history: historyEvidence(ctx, o.c),
+        suggestions: proposeSuccessors(ctx, o),
+        stray_terms: stray,
+      });
+    });
+  },
+};

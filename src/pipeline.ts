@@ -1,0 +1,95 @@
+/**
+ * The pipeline: load → align → classify (diff) → rescore → rank (check).
+ * Each stage is a function of typed data; this file only chains them and gathers the inputs'
+ * accounting for the report.
+ */
+import { loadHierarchy, loadHistory, loadRelease } from './load/index.js';
+import type { ColumnRenames } from './load/columns.js';
+import type { Diagnostic, Hierarchy, HistoryTable, Loaded, Release } from './load/types.js';
+import { buildContext, type DiffContext } from './classify/context.js';
+import { classifyChanges } from './classify/classifyChanges.js';
+import { CHANGE_KINDS, type ChangeKind } from './classify/types.js';
+import type { Thresholds } from './classify/thresholds.js';
+import type { DiffReport, InputInfo } from './report/types.js';
+import { CAUTION } from './report/caution.js';
+import { NAME, VERSION } from './version.js';
+
+export interface DiffOptions {
+  old: string;
+  new: string;
+  oldHierarchy?: string;
+  newHierarchy?: string;
+  history?: string;
+  oldLabel?: string;
+  newLabel?: string;
+  columns?: ColumnRenames;
+  thresholds?: Partial<Thresholds>;
+  /** ISO time written into the report; omitted when not given (reports stay reproducible). */
+  now?: string;
+}
+
+export interface DiffInputs {
+  old: Release;
+  new: Release;
+  oldHierarchy?: Hierarchy;
+  newHierarchy?: Hierarchy;
+  history?: HistoryTable;
+}
+
+/** Load every input of a diff; the two releases are read concurrently. */
+export async function loadDiffInputs(o: DiffOptions): Promise<DiffInputs> {
+  const [oldR, newR, oh, nh, hist] = await Promise.all([
+    loadRelease(o.old, { label: o.oldLabel, columns: o.columns }),
+    loadRelease(o.new, { label: o.newLabel, columns: o.columns }),
+    o.oldHierarchy ? loadHierarchy(o.oldHierarchy) : undefined,
+    o.newHierarchy ? loadHierarchy(o.newHierarchy) : undefined,
+    o.history ? loadHistory(o.history) : undefined,
+  ]);
+  return { old: oldR, new: newR, oldHierarchy: oh, newHierarchy: nh, history: hist };
+}
+
+export function inputInfos(inputs: DiffInputs): InputInfo[] {
+  const list: [InputInfo['role'], Loaded | undefined][] = [
+    ['old', inputs.old], ['new', inputs.new], ['old_hierarchy', inputs.oldHierarchy], ['new_hierarchy', inputs.newHierarchy], ['history', inputs.history],
+  ];
+  return list.filter((x): x is [InputInfo['role'], Loaded] => x[1] !== undefined).map(([role, l]) => ({ role, path: l.path, sha256: l.sha256, accounting: l.accounting }));
+}
+
+export function splitDiagnostics(loaded: (Loaded | undefined)[]): { rejected: Diagnostic[]; warnings: Diagnostic[] } {
+  const all = loaded.filter((l): l is Loaded => l !== undefined).flatMap((l) => l.diagnostics);
+  return { rejected: all.filter((d) => d.rejected), warnings: all.filter((d) => !d.rejected) };
+}
+
+export function summarize(changes: { kind: ChangeKind }[]): Record<ChangeKind, number> {
+  const summary = Object.fromEntries(CHANGE_KINDS.map((k) => [k, 0])) as Record<ChangeKind, number>;
+  for (const c of changes) summary[c.kind]++;
+  return summary;
+}
+
+/** Diff already-loaded inputs: the library entry point that does no I/O. */
+export function diffReleases(inputs: DiffInputs, options: { thresholds?: Partial<Thresholds>; now?: string } = {}): { report: DiffReport; context: DiffContext } {
+  const context = buildContext({ ...inputs, thresholds: options.thresholds });
+  const changes = classifyChanges(context);
+  const { rejected, warnings } = splitDiagnostics([inputs.old, inputs.new, inputs.oldHierarchy, inputs.newHierarchy, inputs.history]);
+  const info = (r: Release) => ({ label: r.label, path: r.path, sha256: r.sha256, concepts: r.conceptCount, terms: r.termCount });
+  const report: DiffReport = {
+    tool: { name: NAME, version: VERSION },
+    caution: CAUTION,
+    releases: { old: info(inputs.old), new: info(inputs.new) },
+    inputs: inputInfos(inputs),
+    parameters: { thresholds: context.thresholds, match_levels: context.align.levelCounts, unchanged_concepts: context.align.unchangedConcepts },
+    changes,
+    summary: summarize(changes),
+    rejected_rows: rejected,
+    warnings,
+  };
+  if (options.now) report.generated_at = options.now;
+  return { report, context };
+}
+
+/** Load and diff. */
+export async function runDiff(options: DiffOptions): Promise<{ report: DiffReport; context: DiffContext; inputs: DiffInputs }> {
+  const inputs = await loadDiffInputs(options);
+  const { report, context } = diffReleases(inputs, options);
+  return { report, context, inputs };
+}
