@@ -36,3 +36,18 @@ export interface DiffReport {
   /** Set only when --now is given; reports carry no clock time otherwise. */
   generated_at?: string;
 }
+
+/** `check` = the diff plus every mapping re-scored, ordered by impact. */
+export interface CheckReport extends DiffReport {
+  mappings: import('../rescore/types.js').MappingResult[];
+  scorer: import('../rescore/types.js').ScorerInfo;
+  /** Count of mappings per verdict (every verdict present, zero included). */
+  verdict_summary: Record<import('../rescore/types.js').Verdict, number>;
+  /** Ids of changes that touch no mapping (listed after the mappings in reports). */
+  changes_without_mappings: string[];
+  /** Set by `--fail-on`: the level and whether it was reached. */
+  fail_on?: { level: import('../rescore/types.js').Verdict; reached: boolean; mappings: number };
+}
+
+export type Report = DiffReport | CheckReport;
+export const isCheckReport = (r: Report): r is CheckReport => 'mappings' in r;
