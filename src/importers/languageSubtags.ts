@@ -8,6 +8,14 @@
  *    plus `data/json/meta.json` for the File-Date), which ships no raw text
  *    (`parseLanguageSubtagRegistryJson`). `loadLanguageSubtagRegistry` picks the form.
  *
+ * The JSON comes in two layouts. From 0.4 on, each array element is one field, its folded
+ * lines already joined ("fields"). Before 0.4 the package's importer pushed every physical
+ * line of a multi-valued field as its own element ("lines"), so a folded Description or
+ * Comments field is split in pieces that look like repeated fields. For that layout we join
+ * all Comments pieces into one comment, and join a Description piece onto the one before
+ * it when that one cannot end a Description (`descriptionContinues`); `counts` says how
+ * many pieces were joined. The layout is read from the package's package.json.
+ *
  * Mapping (`languageSubtagsToRelease`):
  *  - concept_id = `type:subtag`, or `type:tag` for grandfathered and redundant records;
  *  - terms = the Description fields, the first preferred, the rest synonyms;
@@ -75,8 +83,23 @@ export interface ParsedLanguageSubtagRegistry {
   /** Row-level problems; rejected records are not in `records`. */
   diagnostics: ImportDiagnostic[];
   /** records read (File-Date record excluded) = used + rejected. */
-  accounting: { recordsRead: number; used: number; rejected: number; lines?: JarAccounting };
+  accounting: {
+    recordsRead: number;
+    used: number;
+    rejected: number;
+    /** Record-jar input: how every physical line was read. */
+    lines?: JarAccounting;
+    /** JSON "lines" layout: pieces of folded Description fields joined onto the piece before them. */
+    descriptionPiecesJoined?: number;
+    /** JSON "lines" layout: pieces of Comments joined into one comment. */
+    commentPiecesJoined?: number;
+  };
+  /** JSON input: the layout it was read with. */
+  jsonLayout?: JsonLayout;
 }
+
+/** How the JSON of `language-subtag-registry` holds multi-valued fields (see the file header). */
+export type JsonLayout = 'fields' | 'lines';
 
 /** The publisher's own account of one deprecated record. */
 export interface PublisherNote {
@@ -285,9 +308,12 @@ function parseJson(text: string, file: string): unknown {
 export function parseLanguageSubtagRegistryJson(
   registryJson: string,
   metaJson: string,
-  options: { file?: string; metaFile?: string } = {},
+  options: { file?: string; metaFile?: string; layout?: JsonLayout } = {},
 ): ParsedLanguageSubtagRegistry {
   const file = options.file ?? '<registry.json>';
+  const layout = options.layout ?? 'fields';
+  let descriptionPiecesJoined = 0;
+  let commentPiecesJoined = 0;
   const metaFile = options.metaFile ?? '<meta.json>';
   const meta = parseJson(metaJson, metaFile) as Record<string, unknown> | null;
   const fileDate = meta !== null && typeof meta === 'object' ? meta['File-Date'] : undefined;
@@ -312,8 +338,20 @@ export function parseLanguageSubtagRegistryJson(
     const bag: FieldBag = new Map();
     for (const [name, value] of Object.entries(item as Record<string, unknown>)) {
       if (typeof value === 'string') addField(bag, name, value);
-      else if (Array.isArray(value) && value.every((v) => typeof v === 'string')) for (const v of value) addField(bag, name, v as string);
-      else {
+      else if (Array.isArray(value) && value.every((v) => typeof v === 'string')) {
+        let values = value as string[];
+        if (layout === 'lines' && values.length > 1) {
+          const key = name.toLowerCase();
+          if (key === 'comments') {
+            values = [values.join(' ')];
+            commentPiecesJoined += value.length - 1;
+          } else if (key === 'description') {
+            values = joinFoldedDescriptions(values);
+            descriptionPiecesJoined += value.length - values.length;
+          }
+        }
+        for (const v of values) addField(bag, name, v);
+      } else {
         warn(b, line, 'bad_value', `field "${name}" of element ${index + 1} is neither a string nor an array of strings; it is left out`, 'give field values as strings or arrays of strings');
       }
     }
@@ -325,8 +363,56 @@ export function parseLanguageSubtagRegistryJson(
     format: 'json',
     file,
     diagnostics: b.diagnostics,
-    accounting: { recordsRead: data.length, used: b.records.length, rejected: b.rejected },
+    accounting: { recordsRead: data.length, used: b.records.length, rejected: b.rejected, descriptionPiecesJoined, commentPiecesJoined },
+    jsonLayout: layout,
   };
+}
+
+/** Words a Description does not end with; a piece ending in one continues on the next. */
+const CONTINUING_WORDS: ReadonlySet<string> = new Set(['a', 'an', 'and', 'as', 'at', 'by', 'de', 'del', 'des', 'du', 'for', 'from', 'in', 'la', 'le', 'of', 'on', 'or', 'the', 'to', 'with', 'y']);
+
+const count = (s: string, re: RegExp) => (s.match(re) ?? []).length;
+
+/**
+ * True when Description piece `prev` cannot end a Description, so `next` is the rest of the
+ * same folded field: `prev` leaves a bracket or double quote open, ends in a comma or hyphen,
+ * or ends in a function word; or both pieces are comma-separated lists (a list of names
+ * folded across lines). Checked in tests against the 0.4 JSON, whose values are unfolded.
+ */
+export function descriptionContinues(prev: string, next: string): boolean {
+  if (count(prev, /[([]/g) > count(prev, /[)\]]/g)) return true;
+  if (count(prev, /"/g) % 2 === 1) return true;
+  if (/[,\-\u2013]$/.test(prev)) return true;
+  const last = prev.slice(prev.lastIndexOf(' ') + 1);
+  if (CONTINUING_WORDS.has(last)) return true;
+  return prev.includes(', ') && next.includes(', ');
+}
+
+/** Join the pieces of folded Descriptions ("lines" layout). */
+export function joinFoldedDescriptions(pieces: readonly string[]): string[] {
+  const out: string[] = [];
+  for (const piece of pieces) {
+    if (out.length > 0 && descriptionContinues(out[out.length - 1], piece)) out[out.length - 1] = `${out[out.length - 1]} ${piece}`;
+    else out.push(piece);
+  }
+  return out;
+}
+
+/**
+ * Layout of a registry.json from the package.json of the package holding it
+ * (`<pkg>/data/json/registry.json`): "lines" for language-subtag-registry before 0.4.
+ */
+export async function jsonLayoutOf(registryPath: string): Promise<JsonLayout> {
+  const pkgPath = join(dirname(registryPath), '..', '..', 'package.json');
+  let pkg: { name?: unknown; version?: unknown };
+  try {
+    pkg = JSON.parse(await fsp.readFile(pkgPath, 'utf8'));
+  } catch {
+    return 'fields';
+  }
+  if (pkg.name !== 'language-subtag-registry' || typeof pkg.version !== 'string') return 'fields';
+  const [major, minor] = pkg.version.split('.').map(Number);
+  return major === 0 && minor < 4 ? 'lines' : 'fields';
 }
 
 async function statOf(path: string) {
@@ -368,7 +454,7 @@ export async function loadLanguageSubtagRegistry(input: string): Promise<ParsedL
   if (firstChar === '[' || firstChar === '{') {
     const metaPath = join(dirname(input), 'meta.json');
     const meta = await readText(metaPath);
-    return parseLanguageSubtagRegistryJson(text, meta, { file: input, metaFile: metaPath });
+    return parseLanguageSubtagRegistryJson(text, meta, { file: input, metaFile: metaPath, layout: await jsonLayoutOf(input) });
   }
   return parseLanguageSubtagRegistry(text, { file: input });
 }
