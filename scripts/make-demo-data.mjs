@@ -118,7 +118,7 @@ gandsave   |L|haemtest          |Group and save; G&S; Blood group and antibody s
 xmatch     |L|haemtest          |Crossmatch; Cross-match; Blood crossmatch; Compatibility testing
 dat        |L|haemtest,immtest  |Direct antiglobulin test; DAT; Direct Coombs test
 ue         |L|chemtest          |Urea and electrolytes; U&E; U and E; Renal profile; Kidney function tests
-creat      |L|chemtest          |Serum creatinine; Creatinine level; Creatinine measurement; eGFR
+creat      |L|chemtest          |Serum creatinine; Creatinine level; Creatinine measurement; eGFR; Estimated glomerular filtration rate
 na         |L|chemtest          |Serum sodium; Sodium level; Plasma sodium
 k          |L|chemtest          |Serum potassium; Potassium level; Plasma potassium
 urea       |L|chemtest          |Serum urea; Urea level; Blood urea nitrogen; BUN
@@ -222,7 +222,7 @@ hap        |D|pneum             |Hospital acquired pneumonia; HAP; Hospital-onse
 nosoc      |D|lrti              |Nosocomial pneumonia; Nosocomial lower respiratory infection
 asppn      |D|pneum             |Aspiration pneumonia; Aspiration pneumonitis
 urti       |D|respinf           |Upper respiratory tract infection; URTI; Upper respiratory infection; Common cold; Head cold; Acute coryza
-acsin      |D|respinf           |Acute sinusitis; Sinus infection; Acute rhinosinusitis; Acute rhinitis
+acsin      |D|respinf           |Acute sinusitis; Sinus infection; Acute rhinosinusitis; Acute rhinitis; Nasal catarrh
 bronchi    |D|respinf           |Acute bronchitis; Bronchitis, acute; Chest cold
 pharyn     |D|respinf           |Pharyngitis; Sore throat; Acute pharyngitis
 tb         |D|respinf           |Pulmonary tuberculosis; TB; Tuberculosis of lung; Pulmonary TB
@@ -685,13 +685,14 @@ function buildR2(r1) {
   s.carry('urti', 'n_cold', 'Common cold', true, 'preferred');
   s.carry('urti', 'n_cold', 'Head cold', true);
   s.carry('acsin', 'n_cold', 'Acute rhinitis', false);
+  s.carry('acsin', 'n_cold', 'Nasal catarrh', true);
   s.carry('acsin', 'n_rhinosin', 'Acute rhinosinusitis', true, 'preferred');
   s.carry('acsin', 'n_rhinosin', 'Acute sinusitis', true);
   s.carry('acsin', 'n_rhinosin', 'Sinus infection', false);
   s.retire('urti', 'drop');
   s.retire('acsin', 'drop');
   s.hist('acsin', 'n_rhinosin', 'consider');
-  s.change('reorganization', ['urti', 'acsin'], ['n_urti', 'n_cold', 'n_rhinosin'], 'both old concepts removed; Common cold gathers terms from both');
+  s.change('reorganization', ['urti', 'acsin'], ['n_urti', 'n_cold', 'n_rhinosin'], 'both old concepts removed; Common cold gathers two terms from each');
   s.create('n_ue', 'lab test', ['chemtest']);
   s.create('n_renal', 'lab test', ['chemtest']);
   s.carry('ue', 'n_ue', 'Urea and electrolytes', false, 'preferred');
@@ -700,8 +701,9 @@ function buildR2(r1) {
   s.carry('ue', 'n_renal', 'Renal profile', false, 'preferred');
   s.carry('ue', 'n_renal', 'Kidney function tests', false);
   s.carry('creat', 'n_renal', 'eGFR', true);
+  s.carry('creat', 'n_renal', 'Estimated glomerular filtration rate', true);
   s.retire('ue', 'inactive');
-  s.change('reorganization', ['ue', 'creat'], ['n_ue', 'n_renal', 'creat'], 'U&E retired (inactive) into two new panels; Serum creatinine keeps its id but gives eGFR to the new Renal profile');
+  s.change('reorganization', ['ue', 'creat'], ['n_ue', 'n_renal', 'creat'], 'U&E retired (inactive) into two new panels; Serum creatinine keeps its id but gives its two eGFR terms to the new Renal profile');
 
   return s;
 }

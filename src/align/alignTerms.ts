@@ -6,11 +6,12 @@
  * 2. Frontier terms are matched level by level, each level only among the terms still
  *    unmatched: term_id (when both releases carry one), exact text, folded text, lexical key
  *    (see text/normalize.ts). Within a level a term first looks in the concept with its own
- *    identifier if that concept is still active, then in other active concepts of the same
- *    category, then in its own concept if it became inactive. A cross-concept match needs the
- *    same category when both releases give categories: two strings that normalize alike but
- *    belong to different categories are not the same term (common practice in terminology
- *    maintenance).
+ *    identifier if that concept is still active, then in other active concepts, then in its
+ *    own concept if it became inactive. A cross-concept match at the folded or lexical level
+ *    needs the same category when both releases give categories: two strings that only
+ *    normalize alike and belong to different categories are not the same term (common practice
+ *    in terminology maintenance). The identical string or term identifier may cross categories:
+ *    a homonym that stays in both concepts is unchanged and never reaches the frontier.
  * Each new term is matched at most once, so flows count terms, not string coincidences.
  */
 import type { Release } from '../load/types.js';
@@ -118,7 +119,9 @@ export function alignTerms(oldR: Release, newR: Release, options: AlignOptions =
       const id = oldR.termId[t];
       if (id === '') continue;
       const n = byId.get(id);
-      if (n !== undefined && linkOfNew[n] === -1) link(t, n, 'term_id');
+      // A term kept on a concept that is now inactive is matched last (see the passes below),
+      // so that a copy of it in an active concept is found first.
+      if (n !== undefined && linkOfNew[n] === -1 && newR.conceptStatus[newR.termConcept[n]] === ACTIVE) link(t, n, 'term_id');
     }
   }
 
@@ -127,6 +130,7 @@ export function alignTerms(oldR: Release, newR: Release, options: AlignOptions =
   const categoriesGiven = oldR.hasColumn.category && newR.hasColumn.category;
 
   const matchLevel = (level: MatchLevel, keyOf: (text: string) => string) => {
+    const normalized = level === 'folded' || level === 'lexical';
     // Unmatched new terms by key, in file order.
     const byKey = new Map<string, number[]>();
     for (const t of newTerms) {
@@ -150,7 +154,7 @@ export function alignTerms(oldR: Release, newR: Release, options: AlignOptions =
           const active = newR.conceptStatus[nc] === ACTIVE;
           const rank = nc === own ? (active ? 0 : 2) : active ? 1 : -1;
           if (rank !== pass) continue;
-          if (rank === 1 && guard && categoriesGiven && oldCategory(t) !== newCategory(n)) continue;
+          if (rank === 1 && normalized && guard && categoriesGiven && oldCategory(t) !== newCategory(n)) continue;
           link(t, n, level);
           break;
         }

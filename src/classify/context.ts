@@ -99,18 +99,17 @@ export function categoryName(r: Release, c: number): string | null {
   return i < 0 ? null : r.categories[i];
 }
 
-/** Best token-Jaccard of lexical keys over all pairs of terms (0 when either side is empty). */
+/**
+ * Similarity of two term sets: for each term its best token-Jaccard (of lexical keys) against
+ * the other set, averaged over both sets. A mean, not a maximum, so that one shared generic word
+ * ("level", "measurement") cannot make two unrelated concepts look alike. 0 when a side is empty.
+ */
 export function termSetSimilarity(a: string[], b: string[]): number {
-  let best = 0;
+  if (a.length === 0 || b.length === 0) return 0;
+  const ka = a.map((t) => lexicalKey(t).split(' '));
   const kb = b.map((t) => lexicalKey(t).split(' '));
-  for (const ta of a) {
-    const ka = lexicalKey(ta).split(' ');
-    for (const k of kb) {
-      const s = tokenJaccard(ka, k);
-      if (s > best) best = s;
-    }
-  }
-  return best;
+  const meanBest = (xs: string[][], ys: string[][]) => xs.reduce((sum, x) => sum + Math.max(...ys.map((y) => tokenJaccard(x, y))), 0) / xs.length;
+  return (meanBest(ka, kb) + meanBest(kb, ka)) / 2;
 }
 
 /** Resolve a history chain from `id` to active concepts of the new release (cycle-safe). */
@@ -198,7 +197,9 @@ export function buildContext(input: DiffInput): DiffContext {
     const self = align.sameId[o.c];
     for (const n of [...o.flows.keys()].sort((a, b) => a - b)) {
       if (n === self || !isActive(newR, n)) continue;
-      const strong = share(o, n) >= thresholds.carryShare || holdsPreferred(o, n);
+      // Shares decide, not single stray terms: one synonym alone never carries a concept.
+      const count = o.flows.get(n)!.length;
+      const strong = holdsPreferred(o, n) || (share(o, n) >= thresholds.carryShare && count >= 2);
       if (!strong) continue;
       if (o.fate === 'continues' && !news.get(n)!.created) continue; // a moved synonym, not a split
       o.carriers.push(n);
@@ -210,10 +211,10 @@ export function buildContext(input: DiffInput): DiffContext {
       for (const n of o.carriers) graph.mergeEdge(`o${o.c}`, `n${n}`);
       continue;
     }
-    if (o.fate === 'reused' && o.carriers.length === 0) continue; // reported as id_reuse alone
+    if (o.fate === 'reused') continue; // reported as id_reuse, whose `to` names where the old meaning went
     graph.mergeNode(`o${o.c}`);
     for (const n of o.carriers) graph.mergeEdge(`o${o.c}`, `n${n}`);
-    if (o.carriers.length === 0 && input.history && o.fate !== 'reused') {
+    if (o.carriers.length === 0 && input.history) {
       const res = resolveHistory(input.history, newR, o.id, true);
       for (const id of res.targets) {
         const n = newR.conceptIndex.get(id)!;

@@ -4,6 +4,7 @@
  * A change is a discriminated union on `kind`; its `evidence` has a shape per kind.
  * `from` holds old concept ids and `to` new concept ids, with these conventions:
  * merge: from = every merged concept (survivor included), to = [survivor];
+ * id_reuse: from = [the identifier], to = [the identifier, then the concepts now carrying the old meaning];
  * split: from = [old concept], to = the parts; retirement: to = [] (successors go in evidence);
  * moved_synonym: from/to = the two concepts, terms = the moved terms;
  * addition: from = []; every per-concept kind: from = to = [the concept].

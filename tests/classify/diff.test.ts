@@ -58,6 +58,12 @@ describe('diff on hand-built pairs', () => {
     expect(await diff({ old, new: neu })).toEqual(['split P1 > P2+P3']);
   });
 
+  it('moved synonym across categories (the identical string)', async () => {
+    const old = STABLE + 'A disorder: Cholelithiasis* | Gallstones | Gall stones | Biliary colic\nB finding: Biliary pain* | Gallbladder pain';
+    const neu = STABLE + 'A disorder: Cholelithiasis* | Gallstones | Gall stones\nB finding: Biliary pain* | Gallbladder pain | Biliary colic';
+    expect(await diff({ old, new: neu })).toEqual(['moved_synonym A > B']);
+  });
+
   it('moved synonym between two continuing concepts', async () => {
     const old = STABLE + 'A disorder: Migraine* | Sick headache | Hemicrania | Migraine headache\nB disorder: Tension headache* | Stress headache';
     const neu = STABLE + 'A disorder: Migraine* | Hemicrania | Migraine headache\nB disorder: Tension headache* | Stress headache | Sick headache';
@@ -126,9 +132,9 @@ describe('diff on hand-built pairs', () => {
     expect(ret?.kind === 'retirement' && ret.evidence.suggestions[0]?.concept_id).toBe('N');
   });
 
-  it('does not match terms across categories', async () => {
+  it('does not match normalized terms across categories', async () => {
     const old = STABLE + 'A finding: Cold* | Feeling cold\nB disorder: Common cold*';
-    const neu = STABLE + 'B disorder: Common cold* | Cold';
+    const neu = STABLE + 'B disorder: Common cold* | COLD';
     const out = await diff({ old, new: neu });
     expect(out).toContain('retirement A > ');
     expect(out).not.toContain('moved_synonym A > B');

@@ -31,7 +31,9 @@ export const idReuse: Detector<'id_reuse'> = {
         ...o.terms.map((t) => ({ term: ctx.old.termText[t], from: o.id, to: null, match: null })),
         ...newTerms.map((t) => ({ term: ctx.new.termText[t], from: null, to: o.id, match: null })),
       ];
-      out.push(makeChange('id_reuse', [o.id], [o.id], terms, (1 - similarity) * (contextKept ? 0.85 : 1), {
+      // `to`: the reused identifier, then the concepts that now carry the old meaning.
+      const carriers = o.carriers.map((k) => ctx.new.conceptIds[k]).sort();
+      out.push(makeChange('id_reuse', [o.id], [o.id, ...carriers], terms, (1 - similarity) * (contextKept ? 0.85 : 1), {
         terms_before: before, terms_after: after, similarity, category_before: categoryBefore, category_after: categoryAfter, old_terms_went_to: wentTo,
       }));
     }

@@ -19,6 +19,7 @@ export const movedSynonym: Detector<'moved_synonym'> = {
       for (const n of [...o.flows.keys()].sort((a, b) => a - b)) {
         if (n === self || !isActive(ctx.new, n)) continue;
         if (group && group.news.includes(n)) continue;
+        if (o.fate === 'reused' && o.carriers.includes(n)) continue; // part of the id_reuse change
         const to = ctx.new.conceptIds[n];
         const moves = movesOf(ctx, o, n);
         const conf = Math.min(...moves.map((m) => LEVEL_CONFIDENCE[m.match ?? 'lexical']));
