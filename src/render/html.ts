@@ -14,7 +14,6 @@
  * and in attributes alike; attributes are always double-quoted.
  */
 import { createHash } from 'node:crypto';
-import { diffWords } from 'diff';
 import { CHANGE_KIND_INFO } from '../classify/kinds.js';
 import type { Change, FlowCell } from '../classify/types.js';
 import type { MappingResult, Verdict } from '../rescore/types.js';
@@ -33,6 +32,7 @@ import {
   targetLabel,
   termDiffs,
   visible,
+  wordParts,
   VERDICT_INFO,
   type ConceptRef,
   type RenderOptions,
@@ -62,24 +62,24 @@ const STYLE = `
 [hidden]{display:none!important}
 html{background:var(--page);color:var(--ink);font:13px/1.4 system-ui,-apple-system,"Segoe UI",Roboto,"Noto Sans",sans-serif}
 body{margin:0 auto;max-width:1400px;padding:16px 20px 40px}
-h1{font-size:20px;font-weight:600;margin:0 0 4px}
-h2{font-size:16px;font-weight:600;margin:28px 0 8px;padding-bottom:3px;border-bottom:1px solid var(--rule)}
-h3{font-size:13.5px;font-weight:600;margin:16px 0 4px}
-h4{font-size:13px;font-weight:600;margin:12px 0 4px;color:var(--muted)}
+h1{font-size:1.538rem;font-weight:600;margin:0 0 4px}
+h2{font-size:1.231rem;font-weight:600;margin:28px 0 8px;padding-bottom:3px;border-bottom:1px solid var(--rule)}
+h3{font-size:1.038rem;font-weight:600;margin:16px 0 4px}
+h4{font-size:1rem;font-weight:600;margin:12px 0 4px;color:var(--muted)}
 p{margin:4px 0}
-.meta,.small{color:var(--muted);font-size:12px}
-.mono,code{font-family:ui-monospace,"SF Mono",Menlo,Consolas,"Liberation Mono",monospace;font-size:12px}
+.meta,.small{color:var(--muted);font-size:0.923rem}
+.mono,code{font-family:ui-monospace,"SF Mono",Menlo,Consolas,"Liberation Mono",monospace;font-size:0.923rem}
 .caution{border-left:3px solid var(--accent);background:var(--soft);padding:6px 10px;margin:10px 0}
-nav{font-size:12px;margin:8px 0}
+nav{font-size:0.923rem;margin:8px 0}
 nav a{color:var(--accent);margin-right:14px;text-decoration:none}
 nav a:hover{text-decoration:underline}
 a{color:var(--accent)}
 .charts{display:flex;flex-wrap:wrap;gap:18px 36px;align-items:flex-start}
 figure{margin:0}
-figcaption{font-weight:600;font-size:12px;margin-bottom:4px}
+figcaption{font-weight:600;font-size:0.923rem;margin-bottom:4px}
 svg text{font-family:system-ui,-apple-system,"Segoe UI",Roboto,sans-serif;font-size:11px;fill:var(--ink)}
 svg .muted{fill:var(--muted)}
-table{border-collapse:collapse;font-size:12px}
+table{border-collapse:collapse;font-size:0.923rem}
 th,td{text-align:left;padding:2px 8px 2px 0;vertical-align:top;border-bottom:1px solid var(--rule)}
 th{font-weight:600;color:var(--muted);border-bottom-color:#c9cbc3}
 td.n,th.n{text-align:right;font-variant-numeric:tabular-nums}
@@ -87,17 +87,17 @@ td.n,th.n{text-align:right;font-variant-numeric:tabular-nums}
 .tools input[type=search]{font:inherit;padding:2px 6px;width:22em;border:1px solid #c9cbc3;background:#fff}
 .tools label{white-space:nowrap;cursor:pointer}
 .sw{display:inline-block;width:9px;height:9px;border-radius:2px;margin-right:5px;vertical-align:0}
-.grid{display:grid;grid-template-columns:7.5em minmax(9em,1.1fr) minmax(11em,1.4fr) 8.5em 5.5em 5em minmax(11em,1.4fr);column-gap:10px;align-items:baseline}
+.grid{display:grid;grid-template-columns:7.5em minmax(9em,1.1fr) minmax(11em,1.4fr) 9.5em 5.5em 5em minmax(11em,1.4fr);column-gap:10px;align-items:baseline}
 .grid>span{overflow:hidden;text-overflow:ellipsis;white-space:nowrap}
 .grid .n{text-align:right;font-variant-numeric:tabular-nums}
-.rows-head{font-size:11.5px;font-weight:600;color:var(--muted);padding:2px 0 2px 14px;border-bottom:1px solid #c9cbc3}
+.rows-head{font-size:0.885rem;font-weight:600;color:var(--muted);padding:2px 0 2px 14px;border-bottom:1px solid #c9cbc3}
 .group{margin:0 0 10px}
-.group h3{margin:12px 0 2px;font-weight:400;font-size:13px}
+.group h3{margin:12px 0 2px;font-weight:400;font-size:1rem}
 .group h3 .k{font-weight:600}
 .group h3 .num{color:var(--muted);margin-right:4px}
 details>summary{cursor:pointer;list-style:none}
 details>summary::-webkit-details-marker{display:none}
-details>summary::before{content:"\\25B8";display:inline-block;width:12px;color:var(--muted);font-size:10px}
+details>summary::before{content:"\\25B8";display:inline-block;width:12px;color:var(--muted);font-size:0.769rem}
 details[open]>summary::before{content:"\\25BE"}
 details.m>summary{display:grid;padding:2px 0}
 details.m>summary::before{position:absolute}
@@ -112,11 +112,12 @@ details.m[open]{background:var(--soft)}
 .ev dd{margin:0}
 .ev ul{margin:0;padding-left:16px}
 .cause{margin:0 0 4px}
-.cause>summary{color:var(--muted);font-size:12px}
+.cause>summary{color:var(--muted);font-size:0.923rem}
 .change{border-bottom:1px solid var(--rule);padding:3px 0}
 .change>summary .k{color:var(--muted)}
 .change .body{padding:4px 0 6px 14px}
-.facts{margin:2px 0;padding-left:16px;color:var(--muted);columns:2 30em;column-gap:28px}
+.facts{margin:2px 0;padding-left:16px;color:var(--muted)}
+.facts.many{columns:2 30em;column-gap:28px}
 .tds{display:flex;flex-wrap:wrap;gap:6px 28px;margin:4px 0}
 .td ul{list-style:none;margin:0;padding:0}
 .td li::before{display:inline-block;width:1.1em;color:var(--muted)}
@@ -126,14 +127,14 @@ details.m[open]{background:var(--soft)}
 .td li.removed{color:var(--del)}
 .td li.removed::before{content:"\\2212"}
 .td .head{font-weight:600}
-.td .to{color:var(--muted);font-size:11.5px}
+.td .to{color:var(--muted);font-size:0.885rem}
 del{color:var(--del);text-decoration:line-through}
 ins{color:var(--add);text-decoration:none;font-weight:600}
-.tag{display:inline-block;font-size:11px;color:var(--muted);border:1px solid var(--rule);border-radius:3px;padding:0 4px;margin-left:6px}
+.tag{display:inline-block;font-size:0.846rem;color:var(--muted);border:1px solid var(--rule);border-radius:3px;padding:0 4px;margin-left:6px}
 .cols{columns:3 22em;column-gap:28px}
 .cols table{width:100%}
 .flow{max-width:100%;height:auto;display:block;margin:4px 0}
-footer{margin-top:30px;color:var(--muted);font-size:11.5px}
+footer{margin-top:30px;color:var(--muted);font-size:0.885rem}
 @media print{
 html{font-size:10.5px;background:#fff}
 body{max-width:none;padding:0}
@@ -279,8 +280,8 @@ export function flowSvg(view: ReportView, c: Change, flows: FlowCell[]): string 
 }
 
 function wordDiffHtml(before: string, after: string): string {
-  return diffWords(before, after)
-    .map((p) => (p.removed ? `<del>${esc(p.value)}</del>` : p.added ? `<ins>${esc(p.value)}</ins>` : esc(p.value)))
+  return wordParts(before, after)
+    .map((p) => (p.op === 'removed' ? `<del>${esc(p.text)}</del>` : p.op === 'added' ? `<ins>${esc(p.text)}</ins>` : esc(p.text)))
     .join('');
 }
 
@@ -302,7 +303,7 @@ function changeBody(view: ReportView, c: Change): string {
   const pref = preferredChanges(c);
   for (const p of pref) parts.push(`<p>Preferred term of <span class="mono">${esc(p.concept)}</span>: ${wordDiffHtml(p.before, p.after)}</p>`);
   const facts = evidenceFacts(c);
-  if (facts.length) parts.push(`<ul class="facts">${facts.map((f) => `<li>${esc(f)}</li>`).join('')}</ul>`);
+  if (facts.length) parts.push(`<ul class="facts${facts.length > 4 ? ' many' : ''}">${facts.map((f) => `<li>${esc(f)}</li>`).join('')}</ul>`);
   const flows = flowsOf(c);
   if (flows) parts.push(flowSvg(view, c, flows));
   parts.push(termDiffHtml(view, c));

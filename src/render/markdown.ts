@@ -9,7 +9,6 @@
  * link, an autolink, an image, emphasis, HTML or a table cell break) and control characters
  * are made visible, so a label cannot start a new line or a new block.
  */
-import { diffWords } from 'diff';
 import type { Change } from '../classify/types.js';
 import type { MappingResult } from '../rescore/types.js';
 import type { Report } from '../report/types.js';
@@ -26,6 +25,7 @@ import {
   targetLabel,
   termDiffs,
   visible,
+  wordParts,
   VERDICT_INFO,
   type ConceptRef,
   type RenderOptions,
@@ -80,13 +80,11 @@ function subject(view: ReportView, c: Change): string {
 /** Word diff: removed words struck through, added words in bold, spaces kept outside the marks. */
 export function wordDiff(before: string, after: string): string {
   let out = '';
-  for (const p of diffWords(before, after)) {
-    const m = /^(\s*)([\s\S]*?)(\s*)$/.exec(p.value)!;
+  for (const p of wordParts(before, after)) {
+    const m = /^(\s*)([\s\S]*?)(\s*)$/.exec(p.text)!;
     const core = mdText(m[2]);
-    const mark = core === '' ? core : p.removed ? `~~${core}~~` : p.added ? `**${core}**` : core;
-    // A removed run followed by an added one shares no space: put one between the marks.
-    const sep = out !== '' && !/\s$/.test(out) && m[1] === '' && p.added ? ' ' : '';
-    out += `${sep}${m[1]}${mark}${m[3]}`;
+    const mark = core === '' ? core : p.op === 'removed' ? `~~${core}~~` : p.op === 'added' ? `**${core}**` : core;
+    out += `${m[1]}${mark}${m[3]}`;
   }
   return out.replace(/\s+/g, ' ');
 }

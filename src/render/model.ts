@@ -15,7 +15,7 @@ import { CHANGE_KIND_INFO, type ChangeKindInfo } from '../classify/kinds.js';
 import { CHANGE_KINDS, type Change, type ChangeKind } from '../classify/types.js';
 import { VERDICTS, type MappingResult, type Verdict } from '../rescore/types.js';
 import { isCheckReport, type CheckReport, type InputInfo, type Report } from '../report/types.js';
-import { diffArrays } from 'diff';
+import { diffArrays, diffWords } from 'diff';
 
 /** Plain words for each verdict; `action` is false only for the verdict that needs no review. */
 export const VERDICT_INFO: Record<Verdict, { title: string; meaning: string; action: boolean }> = {
@@ -413,6 +413,21 @@ export function preferredChanges(c: Change): PreferredChange[] {
     return out;
   }
   return [];
+}
+
+/**
+ * A word diff (diffWords) as runs of kept, removed and added text. A removed run directly
+ * followed by an added one gets a space between them, so the two read as two phrases.
+ */
+export function wordParts(before: string, after: string): { op: 'kept' | 'removed' | 'added'; text: string }[] {
+  const out: { op: 'kept' | 'removed' | 'added'; text: string }[] = [];
+  for (const p of diffWords(before, after)) {
+    const op = p.added ? 'added' : p.removed ? 'removed' : 'kept';
+    const prev = out[out.length - 1];
+    if (op === 'added' && prev?.op === 'removed' && !/\s$/.test(prev.text) && !/^\s/.test(p.value)) out.push({ op: 'kept', text: ' ' });
+    out.push({ op, text: p.value });
+  }
+  return out;
 }
 
 /** Kinds whose evidence carries a term flow worth drawing. */
