@@ -1,0 +1,247 @@
+/**
+ * Features of a (label, concept) pair against a release, for the mapping scorer.
+ *
+ * Lexical features compare the label with each active term of the concept and keep, per
+ * feature, the best value over the terms:
+ * - `exact`: the label is one of the terms (up to Unicode NFC);
+ * - `folded`: equal after {@link foldTerm} (case, accents, punctuation);
+ * - `lexical`: equal {@link lexicalKey} (word order, inflection, stop words);
+ * - `tfidf`: cosine of TF-IDF vectors of the lexical-key stems, with document frequencies from
+ *   the release's active terms (../text/tfidf.js), so a shared rare word weighs more;
+ * - `trigram`: Sørensen–Dice of padded character 3-grams of the folded forms;
+ * - `jaro_winkler` and `levenshtein`: edit similarities of the folded forms.
+ *
+ * Context features relate the candidate concept to the mapping's old target (its category
+ * and place in the hierarchy in the old release). Each relation is two indicators that are
+ * both 0 when the relation is unknown (no categories, no hierarchy, a concept without
+ * parents), so a missing context neither helps nor hurts:
+ * - `category_same` / `category_differs`;
+ * - `hierarchy_shared`: weighted Jaccard of the ancestors within {@link ANCESTOR_DEPTH} levels
+ *   (weight 1/depth; the concepts themselves are left out, so two siblings under the same
+ *   parents score 1 like a concept against itself), and `hierarchy_unrelated`: both have
+ *   ancestors and share none within those levels.
+ *
+ * Per-term forms (NFC, folded, lexical key, stems) are computed once per concept on first use
+ * and cached, since a mapping set names the same concepts again and again.
+ */
+import type { Hierarchy, Release } from '../load/types.js';
+import { ACTIVE } from '../load/types.js';
+import { foldTerm, lexicalKey } from '../text/normalize.js';
+import { jaroWinkler, levenshteinSimilarity, trigramDice } from '../text/similarity.js';
+import { DocumentFrequencies, tfidfCosine } from '../text/tfidf.js';
+
+export const LEXICAL_FEATURES = ['exact', 'folded', 'lexical', 'tfidf', 'trigram', 'jaro_winkler', 'levenshtein'] as const;
+export const CONTEXT_FEATURES = ['category_same', 'category_differs', 'hierarchy_shared', 'hierarchy_unrelated'] as const;
+export const FEATURES = [...LEXICAL_FEATURES, ...CONTEXT_FEATURES] as const;
+export type FeatureName = (typeof FEATURES)[number];
+export const FEATURE_COUNT: number = FEATURES.length;
+export const LEXICAL_COUNT: number = LEXICAL_FEATURES.length;
+
+/** Ancestors are followed this many levels up. */
+export const ANCESTOR_DEPTH = 3;
+
+/** The comparison forms of one text (a label or a term). */
+export interface TextForms {
+  text: string;
+  nfc: string;
+  folded: string;
+  lexical: string;
+  /** Stems of the lexical key, for TF-IDF. */
+  stems: string[];
+}
+
+export function textForms(text: string): TextForms {
+  const lexical = lexicalKey(text);
+  return { text, nfc: text.normalize('NFC'), folded: foldTerm(text), lexical, stems: lexical === '' ? [] : lexical.split(' ') };
+}
+
+/** Active terms of concept c (term_status active), in release order. */
+export function activeTermsOf(r: Release, c: number): number[] {
+  const out: number[] = [];
+  for (let k = r.conceptTermStart[c]; k < r.conceptTermStart[c + 1]; k++) {
+    const t = r.conceptTerms[k];
+    if (r.termStatus[t] === ACTIVE) out.push(t);
+  }
+  return out;
+}
+
+/**
+ * Document frequencies of lexical-key stems over the active terms of active concepts.
+ * At most `maxTerms` terms are read, evenly spaced through the release, so a release of
+ * millions of terms is estimated from a sample (IDF depends on the ratio df/N, which a
+ * systematic sample keeps); rare tokens missing from the sample get the largest IDF.
+ */
+export function releaseDocumentFrequencies(r: Release, maxTerms = 300_000): DocumentFrequencies {
+  const df = new DocumentFrequencies();
+  const active: number[] = [];
+  for (let t = 0; t < r.termCount; t++) {
+    if (r.termStatus[t] === ACTIVE && r.conceptStatus[r.termConcept[t]] === ACTIVE) active.push(t);
+  }
+  const step = Math.max(1, active.length / maxTerms);
+  for (let i = 0; i < active.length; i += step) {
+    const key = lexicalKey(r.termText[active[Math.floor(i)]]);
+    df.add(key === '' ? [] : key.split(' '));
+  }
+  return df;
+}
+
+/** One term of a concept with its forms. */
+interface TermEntry {
+  term: number;
+  forms: TextForms;
+}
+
+/** Result of the lexical comparison of a label with a concept. */
+export interface LexicalMatch {
+  /** Term of the concept that matched best (by trigram, then TF-IDF), -1 when it has none. */
+  bestTerm: number;
+}
+
+/**
+ * Lexical features of labels against the concepts of one release, with per-concept caches.
+ * `df` is shared by every release the scorer is applied to, so that scores in two releases
+ * differ only because the terms differ.
+ */
+export class ReleaseFeatures {
+  readonly release: Release;
+  readonly df: DocumentFrequencies;
+  private readonly cache = new Map<number, TermEntry[]>();
+
+  constructor(release: Release, df: DocumentFrequencies) {
+    this.release = release;
+    this.df = df;
+  }
+
+  /** Active terms of concept c with their forms (cached). */
+  terms(c: number): readonly TermEntry[] {
+    let entry = this.cache.get(c);
+    if (!entry) {
+      entry = activeTermsOf(this.release, c).map((t) => ({ term: t, forms: textForms(this.release.termText[t]) }));
+      this.cache.set(c, entry);
+    }
+    return entry;
+  }
+
+  /**
+   * Write the lexical features of `label` against concept c into out[offset .. offset+7),
+   * skipping term `skipTerm` (training leaves the label's own term out). A concept with no
+   * active term gets all zeros.
+   */
+  lexical(label: TextForms, c: number, out: Float64Array, offset = 0, skipTerm = -1): LexicalMatch {
+    for (let j = 0; j < LEXICAL_COUNT; j++) out[offset + j] = 0;
+    let bestTerm = -1;
+    let bestKey = -1;
+    for (const { term, forms } of this.terms(c)) {
+      if (term === skipTerm) continue;
+      const exact = forms.nfc === label.nfc ? 1 : 0;
+      const folded = forms.folded === label.folded ? 1 : 0;
+      const lexical = forms.lexical !== '' && forms.lexical === label.lexical ? 1 : 0;
+      const tfidf = tfidfCosine(label.stems, forms.stems, this.df);
+      const trigram = folded ? 1 : trigramDice(label.folded, forms.folded);
+      const jw = folded ? 1 : jaroWinkler(label.folded, forms.folded);
+      const lev = folded ? 1 : levenshteinSimilarity(label.folded, forms.folded);
+      const values = [exact, folded, lexical, tfidf, trigram, jw, lev];
+      for (let j = 0; j < LEXICAL_COUNT; j++) if (values[j] > out[offset + j]) out[offset + j] = values[j];
+      const key = trigram * 2 + tfidf;
+      if (key > bestKey) {
+        bestKey = key;
+        bestTerm = term;
+      }
+    }
+    return { bestTerm };
+  }
+}
+
+// ---------------------------------------------------------------------------
+// Context: category and hierarchy
+
+/** Ancestors of concepts in one hierarchy, with their shortest distance, cached. */
+export class AncestorIndex {
+  readonly hierarchy: Hierarchy;
+  private readonly cache = new Map<string, Map<string, number>>();
+
+  constructor(hierarchy: Hierarchy) {
+    this.hierarchy = hierarchy;
+  }
+
+  /**
+   * Ancestors of `id` within `ANCESTOR_DEPTH` levels → depth (1 = parent). Breadth-first with a
+   * visited set, so cycles in the input end the walk instead of looping; `id` itself is never
+   * its own ancestor.
+   */
+  ancestors(id: string): ReadonlyMap<string, number> {
+    let found = this.cache.get(id);
+    if (found) return found;
+    found = new Map();
+    let frontier = [id];
+    for (let depth = 1; depth <= ANCESTOR_DEPTH && frontier.length; depth++) {
+      const next: string[] = [];
+      for (const cur of frontier) {
+        for (const p of this.hierarchy.parents.get(cur) ?? []) {
+          if (p === id || found.has(p)) continue;
+          found.set(p, depth);
+          next.push(p);
+        }
+      }
+      frontier = next;
+    }
+    this.cache.set(id, found);
+    return found;
+  }
+
+  /** Parents of `id`, sorted, deduplicated. */
+  parents(id: string): string[] {
+    return [...new Set(this.hierarchy.parents.get(id) ?? [])].sort();
+  }
+}
+
+/**
+ * Weighted Jaccard of two ancestor sets, each ancestor weighing 1/depth:
+ * Σ min(wa, wb) over shared ancestors / Σ max(wa, wb) over all of them. 0 when either is empty.
+ */
+export function ancestorSimilarity(a: ReadonlyMap<string, number>, b: ReadonlyMap<string, number>): number {
+  if (a.size === 0 || b.size === 0) return 0;
+  let shared = 0;
+  let union = 0;
+  for (const [id, da] of a) {
+    const wa = 1 / da;
+    const db = b.get(id);
+    if (db === undefined) union += wa;
+    else {
+      const wb = 1 / db;
+      shared += Math.min(wa, wb);
+      union += Math.max(wa, wb);
+    }
+  }
+  for (const [id, db] of b) if (!a.has(id)) union += 1 / db;
+  return shared / union;
+}
+
+/** Where a concept sits: its category and ancestors (null when unknown). */
+export interface ConceptContext {
+  category: string | null;
+  ancestors: ReadonlyMap<string, number> | null;
+}
+
+/** The context of concept c of release r (category from the release, ancestors from `ancestors`). */
+export function conceptContext(r: Release, c: number, ancestors?: AncestorIndex): ConceptContext {
+  const i = r.conceptCategory[c];
+  return { category: i < 0 ? null : r.categories[i], ancestors: ancestors ? ancestors.ancestors(r.conceptIds[c]) : null };
+}
+
+/** Write the context features of `candidate` relative to `oldTarget` into out[offset .. offset+4). */
+export function contextFeatures(oldTarget: ConceptContext | null, candidate: ConceptContext, out: Float64Array, offset = LEXICAL_COUNT): void {
+  out[offset] = out[offset + 1] = out[offset + 2] = out[offset + 3] = 0;
+  if (!oldTarget) return;
+  if (oldTarget.category !== null && candidate.category !== null) {
+    if (oldTarget.category === candidate.category) out[offset] = 1;
+    else out[offset + 1] = 1;
+  }
+  const a = oldTarget.ancestors;
+  const b = candidate.ancestors;
+  if (a && b && a.size > 0 && b.size > 0) {
+    const s = ancestorSimilarity(a, b);
+    out[offset + 2] = s;
+    if (s === 0) out[offset + 3] = 1;
+  }
+}
