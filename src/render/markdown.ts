@@ -35,12 +35,15 @@ import { CHANGE_KIND_INFO } from '../classify/kinds.js';
 
 /**
  * Escape a string from the input for inline Markdown (CommonMark + GFM): backslash before every
- * character that can open a construct — \ ` * _ [ ] ( ) < > # ! | ~ & : @ . $ { } — and visible
+ * character that can open a construct — \ ` * _ [ ] ( ) < > # ! | ~ & : @ . $ { }, and - + = at the
+ * start — and visible
  * escapes for control and bidi characters (line breaks included). ':' '@' '.' are escaped because
  * GFM turns `http://…`, `www.…` and `a@b.c` into links even without brackets.
  */
 export function mdText(s: string): string {
-  return visible(s).replace(/[\\`*_[\]()<>#!|~&:@.${}]/g, (ch) => `\\${ch}`);
+  // A leading - + = could start a list item, thematic break or heading underline where the
+  // string begins a line (list items, table cells): escape it too.
+  return visible(s).replace(/[\\`*_[\]()<>#!|~&:@.${}]|^[-+=]/g, (ch) => `\\${ch}`);
 }
 
 /** A line inside a fenced code block: nothing is interpreted there but line breaks. */

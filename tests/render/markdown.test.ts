@@ -35,7 +35,7 @@ function text(node: El): string {
 
 describe('mdText', () => {
   it('renders every hostile string as the same text and nothing else', () => {
-    for (const s of [SCRIPT, ATTRIBUTE, MD_LINK, FORMULA, 'see https://evil.example/x', 'www.evil.example', 'mail a@b.example', '![img](http://evil.example/i.png)', '<img src=x onerror=alert(1)>', '**bold** _it_ ~~s~~ `code`', 'a | b', '&amp; &#60;', '$x$', 'line\nbreak']) {
+    for (const s of [SCRIPT, ATTRIBUTE, MD_LINK, FORMULA, 'see https://evil.example/x', 'www.evil.example', 'mail a@b.example', '![img](http://evil.example/i.png)', '<img src=x onerror=alert(1)>', '**bold** _it_ ~~s~~ `code`', 'a | b', '&amp; &#60;', '$x$', 'line\nbreak', '- item', '+ item', '1. item', '---', '=== x', '> quote', '# heading']) {
       const html = toHtml(mdText(s));
       const root = parseFragment(html) as unknown as El;
       const tags = elements(root).map((e) => e.tagName);
