@@ -1,0 +1,107 @@
+import { describe, expect, it } from 'vitest';
+import { loadPair } from '../helpers/releases.js';
+import {
+  AncestorIndex, FEATURES, FEATURE_COUNT, LEXICAL_COUNT, ReleaseFeatures, ancestorSimilarity, conceptContext, contextFeatures,
+  releaseDocumentFrequencies, textForms,
+} from '../../src/rescore/features.js';
+import type { Hierarchy } from '../../src/load/types.js';
+
+const SPEC = `
+A disorder: Heart attack* | Myocardial infarction | MI
+B disorder: Fracture of femur* | Femoral fracture
+C finding: Rash*
+D disorder (inactive): Old thing*
+`;
+
+async function release() {
+  return (await loadPair({ old: SPEC, new: SPEC })).old;
+}
+
+const f = (name: (typeof FEATURES)[number]) => FEATURES.indexOf(name);
+
+describe('lexical features', () => {
+  it('exact, folded and lexical matches are graded by normalization level', async () => {
+    const r = await release();
+    const feats = new ReleaseFeatures(r, releaseDocumentFrequencies(r));
+    const x = new Float64Array(FEATURE_COUNT);
+    const a = r.conceptIndex.get('A')!;
+    feats.lexical(textForms('Heart attack'), a, x);
+    expect([x[f('exact')], x[f('folded')], x[f('lexical')]]).toEqual([1, 1, 1]);
+    feats.lexical(textForms('HEART-ATTACK'), a, x);
+    expect([x[f('exact')], x[f('folded')], x[f('lexical')]]).toEqual([0, 1, 1]);
+    feats.lexical(textForms('Femur fractures'), r.conceptIndex.get('B')!, x);
+    expect([x[f('exact')], x[f('folded')], x[f('lexical')]]).toEqual([0, 0, 1]);
+    expect(x[f('tfidf')]).toBeCloseTo(1, 10); // same stems, same vector
+  });
+
+  it('takes the best value over the terms, and leaves a skipped term out', async () => {
+    const r = await release();
+    const feats = new ReleaseFeatures(r, releaseDocumentFrequencies(r));
+    const x = new Float64Array(LEXICAL_COUNT);
+    const a = r.conceptIndex.get('A')!;
+    const mi = r.termText.indexOf('Myocardial infarction');
+    const match = feats.lexical(textForms('Myocardial infarction'), a, x);
+    expect(match.bestTerm).toBe(mi);
+    expect(x[f('trigram')]).toBe(1);
+    feats.lexical(textForms('Myocardial infarction'), a, x, 0, mi);
+    expect(x[f('exact')]).toBe(0);
+    expect(x[f('trigram')]).toBeLessThan(0.5);
+  });
+
+  it('a typo keeps high edit similarity and no exact match', async () => {
+    const r = await release();
+    const feats = new ReleaseFeatures(r, releaseDocumentFrequencies(r));
+    const x = new Float64Array(LEXICAL_COUNT);
+    feats.lexical(textForms('Hart attack'), r.conceptIndex.get('A')!, x);
+    expect(x[f('exact')]).toBe(0);
+    expect(x[f('jaro_winkler')]).toBeGreaterThan(0.9);
+    // levenshtein similarity 1 − 1/12 ("hart attack" vs "heart attack")
+    expect(x[f('levenshtein')]).toBeCloseTo(1 - 1 / 12, 10);
+  });
+
+  it('document frequencies count active terms of active concepts only', async () => {
+    const r = await release();
+    const df = releaseDocumentFrequencies(r);
+    expect(df.count).toBe(6); // 3 + 2 + 1; D is inactive
+    expect(df.frequency('fractur')).toBe(2);
+    // Sampled: 3 of the 6 terms read, evenly spaced.
+    expect(releaseDocumentFrequencies(r, 3).count).toBe(3);
+  });
+});
+
+function hierarchy(edges: [string, string][]): Hierarchy {
+  const parents = new Map<string, string[]>();
+  for (const [c, p] of edges) parents.set(c, [...(parents.get(c) ?? []), p]);
+  return { path: 'h', sha256: '', accounting: { file: 'h', read: 0, used: 0, rejected: 0, blankLines: 0 }, diagnostics: [], parents, edgeCount: edges.length };
+}
+
+describe('context features', () => {
+  it('walks ancestors up to three levels and survives cycles', () => {
+    const idx = new AncestorIndex(hierarchy([['A', 'P'], ['P', 'G'], ['G', 'GG'], ['GG', 'GGG'], ['X', 'Y'], ['Y', 'X']]));
+    expect([...idx.ancestors('A')]).toEqual([['P', 1], ['G', 2], ['GG', 3]]);
+    expect([...idx.ancestors('X')]).toEqual([['Y', 1]]);
+  });
+
+  it('weighted Jaccard of ancestors (hand-computed)', () => {
+    // A: P(1), G(1/2); B: P(1), Q(1), G(1/2). Shared min: 1 + 1/2; union max: 1 + 1 + 1/2 → 0.6.
+    expect(ancestorSimilarity(new Map([['P', 1], ['G', 2]]), new Map([['P', 1], ['Q', 1], ['G', 2]]))).toBeCloseTo(0.6, 12);
+    // Siblings under the same parents score 1, like a concept against itself.
+    expect(ancestorSimilarity(new Map([['P', 1]]), new Map([['P', 1]]))).toBe(1);
+    expect(ancestorSimilarity(new Map(), new Map([['P', 1]]))).toBe(0);
+  });
+
+  it('category and hierarchy indicators, all 0 when unknown', async () => {
+    const r = await release();
+    const anc = new AncestorIndex(hierarchy([['A', 'P'], ['B', 'P'], ['C', 'Z']]));
+    const x = new Float64Array(FEATURE_COUNT).fill(9);
+    const ctx = (id: string) => conceptContext(r, r.conceptIndex.get(id)!, anc);
+    contextFeatures(ctx('A'), ctx('B'), x);
+    expect([...x.slice(LEXICAL_COUNT)]).toEqual([1, 0, 1, 0]);
+    contextFeatures(ctx('A'), ctx('C'), x);
+    expect([...x.slice(LEXICAL_COUNT)]).toEqual([0, 1, 0, 1]);
+    contextFeatures(null, ctx('C'), x);
+    expect([...x.slice(LEXICAL_COUNT)]).toEqual([0, 0, 0, 0]);
+    contextFeatures({ category: null, ancestors: null }, ctx('C'), x);
+    expect([...x.slice(LEXICAL_COUNT)]).toEqual([0, 0, 0, 0]);
+  });
+});

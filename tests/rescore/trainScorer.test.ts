@@ -1,0 +1,60 @@
+import { describe, expect, it } from 'vitest';
+import { loadPair } from '../helpers/releases.js';
+import { localVariant, trainScorer } from '../../src/rescore/trainScorer.js';
+import { SeededRandom } from '../../src/rescore/random.js';
+import { FEATURES } from '../../src/rescore/features.js';
+import { BASE, BASE_HIERARCHY } from './fixtures.js';
+
+describe('trainScorer', () => {
+  it('is deterministic for a seed and fills ScorerInfo', async () => {
+    const { new: r, newHierarchy } = await loadPair({ old: BASE, new: BASE, oldHierarchy: BASE_HIERARCHY, newHierarchy: BASE_HIERARCHY });
+    const a = trainScorer(r, { hierarchy: newHierarchy, seed: 7 });
+    const b = trainScorer(r, { hierarchy: newHierarchy, seed: 7 });
+    expect(a.info).toEqual(b.info);
+    expect(a.info.features).toEqual([...FEATURES]);
+    expect(Object.keys(a.info.weights)).toEqual(['intercept', ...FEATURES]);
+    expect(a.info.seed).toBe(7);
+    // 36 concepts: at most 8 pairs per concept are drawn.
+    expect(a.info.pairs_trained + a.info.pairs_held_out).toBe(8 * 36);
+    expect(a.info.pairs_held_out).toBeGreaterThan(0.15 * 8 * 36);
+    const c = trainScorer(r, { hierarchy: newHierarchy, seed: 8 });
+    expect(c.info.weights).not.toEqual(a.info.weights);
+  });
+
+  it('separates a concept\'s own terms from other concepts on held-out pairs', async () => {
+    const { new: r } = await loadPair({ old: BASE, new: BASE });
+    const s = trainScorer(r, { seed: 3 });
+    expect(s.info.auc).toBeGreaterThan(0.85);
+    expect(s.info.ece).toBeLessThan(0.2);
+    // Matching text weighs in favour of a match.
+    expect(s.info.weights.trigram + s.info.weights.tfidf + s.info.weights.jaro_winkler).toBeGreaterThan(0);
+  });
+
+  it('needs at least two active concepts', async () => {
+    const { new: r } = await loadPair({ old: 'A disorder: Asthma*', new: 'A disorder: Asthma*' });
+    expect(() => trainScorer(r)).toThrow(/at least 2/);
+  });
+
+  it('rejects bad options', async () => {
+    const { new: r } = await loadPair({ old: BASE, new: BASE });
+    expect(() => trainScorer(r, { pairs: 5 })).toThrow(/pairs/);
+    expect(() => trainScorer(r, { holdOut: 1 })).toThrow(/holdOut/);
+  });
+});
+
+describe('localVariant', () => {
+  it('produces the local-list variants, reproducibly', () => {
+    const seen = new Set<string>();
+    const rng = new SeededRandom(11);
+    for (let i = 0; i < 200; i++) seen.add(localVariant('Removal of gallbladder', rng));
+    expect(seen).toContain('Removal of gallbladder');
+    expect(seen).toContain('REMOVAL OF GALLBLADDER');
+    expect(seen).toContain('gallbladder Removal of');
+    expect(seen).toContain('Removal gallbladder');
+    expect(seen).toContain('Removal of gall.');
+    // and some one-letter typos
+    expect([...seen].some((v) => v.length === 'Removal of gallbladder'.length - 1 && v !== 'Removal gallbladder')).toBe(true);
+    const again = new SeededRandom(11);
+    expect(localVariant('Removal of gallbladder', again)).toBe(localVariant('Removal of gallbladder', new SeededRandom(11)));
+  });
+});
