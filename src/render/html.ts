@@ -353,7 +353,7 @@ function actionSection(view: ReportView): string {
   const out: string[] = [];
   out.push(`<section id="actions"><h2>Mappings needing action <span class="tag">${formatCount(view.actions.length)}</span></h2>`);
   const which = view.filtered ? `Only the verdicts ${view.verdicts.map((v) => VERDICT_INFO[v].title).join(', ')} are listed.` : 'Every verdict but “No action” is listed.';
-  out.push(`<p class="small">Under the change that caused them, the group holding the largest impact first; within a group by impact, then local code. ${esc(which)} Open a row for its evidence.</p>`);
+  out.push(`<p class="small">Under the change that caused them, the group with the largest total impact first, mappings that no change touches last; within a group by impact, then local code. ${esc(which)} Open a row for its evidence.</p>`);
   if (!view.actions.length) {
     out.push('<p>None.</p></section>');
     return out.join('');
@@ -369,7 +369,7 @@ function actionSection(view: ReportView): string {
     const head = g.change
       ? `<span class="num">${i + 1}.</span><span class="k">${esc(CHANGE_KIND_INFO[g.change.kind].title)}:</span> ${subject(view, g.change)}`
       : `<span class="num">${i + 1}.</span><span class="k">Not caused by a change between the releases</span>`;
-    const meta = `<span class="tag">${formatCount(g.mappings.length)} mapping${g.mappings.length === 1 ? '' : 's'}</span><span class="tag">largest impact ${formatCount(g.impact)}</span>`;
+    const meta = `<span class="tag">${formatCount(g.mappings.length)} mapping${g.mappings.length === 1 ? '' : 's'}</span><span class="tag">total impact ${formatCount(g.impact)}</span>`;
     const cause = g.change ? `<details class="cause"><summary>The change <a href="#c-${view.changeIndex.get(g.change.id)}" class="mono">${esc(g.change.id)}</a></summary><div class="body">${changeBody(view, g.change)}</div></details>` : '';
     out.push(`<div class="group"><h3>${head}${meta}</h3>${cause}${g.mappings.map((m) => mappingRow(view, m)).join('')}</div>`);
   });

@@ -132,7 +132,7 @@ function candidate(view: ReportView, s: MappingResult['suggestions'][number]): s
 function actionSection(view: ReportView, out: string[]): void {
   out.push('## Mappings needing action', '');
   const which = view.filtered ? `Only the verdicts ${view.verdicts.map((v) => VERDICT_INFO[v].title).join(', ')} are listed.` : 'Every verdict but "No action" is listed.';
-  out.push(`${formatCount(view.actions.length)} mappings, under the change that caused them; the group holding the largest impact comes first, and within a group the mappings go by impact, then local code. ${which}`, '');
+  out.push(`${formatCount(view.actions.length)} mappings, under the change that caused them; the group with the largest total impact comes first, mappings that no change touches last, and within a group the mappings go by impact, then local code. ${which}`, '');
   if (!view.actions.length) {
     out.push('None.', '');
     return;
@@ -140,7 +140,7 @@ function actionSection(view: ReportView, out: string[]): void {
   view.groups.forEach((g, i) => {
     const title = g.change ? `${CHANGE_KIND_INFO[g.change.kind].title}: ${subject(view, g.change)}` : 'Not caused by a change between the releases';
     out.push(`### ${i + 1}. ${title}`, '');
-    if (g.change) out.push(`Change ${mdText(g.change.id)}, confidence ${formatScore(g.change.confidence)}. ${formatCount(g.mappings.length)} mapping${g.mappings.length === 1 ? '' : 's'}.`, '');
+    out.push(`${g.change ? `Change ${mdText(g.change.id)}, confidence ${formatScore(g.change.confidence)}. ` : ''}${formatCount(g.mappings.length)} mapping${g.mappings.length === 1 ? '' : 's'}, total impact ${formatCount(g.impact)}.`, '');
     const rows = g.mappings.map((m) => {
       const label = targetLabel(view, m);
       const others = m.change_ids.filter((id) => id !== mainCause(m, view.changeById)?.id);

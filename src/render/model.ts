@@ -5,7 +5,8 @@
  * - changes in sections by severity (does the kind change what a code means?) then by kind,
  *   kinds in CHANGE_KINDS order (most dangerous first);
  * - mappings needing action (verdict other than ok), ordered by impact, then local code, then
- *   source line; and the same mappings grouped under the change that caused them;
+ *   source line; and the same mappings grouped under the change that caused them (the grouping
+ *   of rankByImpact's groupByChange: groups by total impact), those no change touches last;
  * - the changes that touch no mapping, listed after the groups;
  * - counts by verdict and by kind, impact buckets, the input accounting table and the
  *   parameters used, flattened to name/value rows.
@@ -16,6 +17,7 @@ import { CHANGE_KINDS, type Change, type ChangeKind } from '../classify/types.js
 import { VERDICTS, type MappingResult, type Verdict } from '../rescore/types.js';
 import { isCheckReport, type CheckReport, type InputInfo, type Report } from '../report/types.js';
 import { diffArrays, diffWords } from 'diff';
+import { groupByChange } from '../rank/rankByImpact.js';
 
 /** Plain words for each verdict; `action` is false only for the verdict that needs no review. */
 export const VERDICT_INFO: Record<Verdict, { title: string; meaning: string; action: boolean }> = {
@@ -64,7 +66,9 @@ export interface SeveritySection {
 /** Mappings needing action whose main cause is one change (or none: `change` null). */
 export interface ActionGroup {
   change: Change | null;
+  /** By impact, then local code, then line. */
   mappings: MappingResult[];
+  /** Sum of the mappings' impact. */
   impact: number;
 }
 
@@ -141,7 +145,7 @@ export interface ReportView {
   filtered: boolean;
   /** Mappings with a listed verdict, by impact (descending), local code, line. */
   actions: MappingResult[];
-  /** The same mappings under the change that caused them, largest impact first. */
+  /** The same mappings under the change that caused them, largest total impact first; those no change touches last. */
   groups: ActionGroup[];
   /** Changes that touch no mapping, in report order. */
   unmappedChanges: Change[];
@@ -221,7 +225,7 @@ export function buildView(report: Report, options: ViewOptions = {}): ReportView
     verdicts,
     filtered: options.verdicts !== undefined,
     actions,
-    groups: groupByCause(actions, changeById),
+    groups: groupByCause(actions, report.changes),
     unmappedChanges: check ? check.changes_without_mappings.map((id) => changeById.get(id)).filter((c): c is Change => c !== undefined) : [],
     impact: impactBuckets(actions.map((m) => m.impact)),
     inputs: report.inputs.map((i) => ({ role: i.role, title: INPUT_ROLE_TITLE[i.role] ?? i.role, path: i.path, sha256: i.sha256, read: i.accounting.read, used: i.accounting.used, rejected: i.accounting.rejected, blankLines: i.accounting.blankLines })),
@@ -234,30 +238,30 @@ export function buildView(report: Report, options: ViewOptions = {}): ReportView
 }
 
 /**
- * The change a mapping is listed under: of the changes it names that are in the report, the one
- * of the most dangerous kind (CHANGE_KINDS order), the first named on a tie.
+ * The change a mapping is listed under, as rankByImpact's groupByChange decides it: of the
+ * changes it names that are in the report, the one of the most dangerous kind (CHANGE_KINDS
+ * order), the smaller id on a tie.
  */
 export function mainCause(m: MappingResult, changeById: Map<string, Change>): Change | null {
   let best: Change | null = null;
   for (const id of m.change_ids) {
     const c = changeById.get(id);
-    if (c && (!best || KIND_RANK.get(c.kind)! < KIND_RANK.get(best.kind)!)) best = c;
+    if (!c) continue;
+    if (!best) best = c;
+    else {
+      const d = KIND_RANK.get(c.kind)! - KIND_RANK.get(best.kind)!;
+      if (d < 0 || (d === 0 && compareText(c.id, best.id) < 0)) best = c;
+    }
   }
   return best;
 }
 
-function groupByCause(actions: MappingResult[], changeById: Map<string, Change>): ActionGroup[] {
-  const groups = new Map<string | null, ActionGroup>();
-  for (const m of actions) {
-    const cause = mainCause(m, changeById);
-    const key = cause?.id ?? null;
-    let g = groups.get(key);
-    if (!g) groups.set(key, (g = { change: cause, mappings: [], impact: 0 }));
-    g.mappings.push(m);
-    g.impact = Math.max(g.impact, m.impact);
-  }
-  // Mappings arrive ordered, so each group's first mapping is its largest; ties keep first-seen order.
-  return [...groups.values()].sort((a, b) => b.impact - a.impact || compareByImpact(a.mappings[0], b.mappings[0]));
+/** Groups from groupByChange (total impact, then change id), then the mappings no change touches. */
+function groupByCause(actions: MappingResult[], changes: Change[]): ActionGroup[] {
+  const grouped = groupByChange(actions, changes);
+  const groups: ActionGroup[] = grouped.changes.map((g) => ({ change: g.change, mappings: g.mappings, impact: g.impact }));
+  if (grouped.unchanged.length) groups.push({ change: null, mappings: grouped.unchanged, impact: grouped.unchanged.reduce((n, m) => n + m.impact, 0) });
+  return groups;
 }
 
 /** Decade buckets over impact: under 10, 10 to 100, 100 to 1,000 … up to the decade of the largest. */

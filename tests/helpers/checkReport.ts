@@ -7,8 +7,9 @@
 import { VERDICTS, type MappingResult, type ScorerInfo, type Verdict } from '../../src/rescore/types.js';
 import type { CheckReport, DiffReport, InputInfo } from '../../src/report/types.js';
 import { compareByImpact } from '../../src/render/model.js';
+import { impactOf } from '../../src/rank/rankByImpact.js';
 
-/** A mapping result with plain defaults; impact defaults to the usage. */
+/** A mapping result with plain defaults; impact defaults to rankByImpact's weight of the verdict × usage. */
 export function mapping(fields: Partial<MappingResult> & Pick<MappingResult, 'local_code' | 'target_id' | 'verdict'>): MappingResult {
   const usage = fields.usage ?? 10;
   return {
@@ -20,7 +21,7 @@ export function mapping(fields: Partial<MappingResult> & Pick<MappingResult, 'lo
     score_old: 0.9,
     score_new: fields.verdict === 'ok' ? 0.9 : 0.2,
     suggestions: [],
-    impact: usage,
+    impact: impactOf(fields.verdict, usage),
     change_ids: [],
     reasons: [],
     line: 2,

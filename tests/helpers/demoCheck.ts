@@ -2,7 +2,7 @@
  * A CheckReport of realistic size for looking at the reports: the real diff of the demo releases
  * r1 → r2, with the demo hospital's mappings given the verdicts the demo expects
  * (demo-data/expected-verdicts-r1-r2.tsv). Candidates come from the changes' own evidence and
- * impact is a hand-set weight per verdict × usage. No rescoring is run: this is a fixture for
+ * impact is rankByImpact's severity weight × usage. No rescoring is run: this is a fixture for
  * renderers, not a check of the rescoring.
  */
 import { readFileSync } from 'node:fs';
@@ -11,9 +11,8 @@ import { runDiff } from '../../src/pipeline.js';
 import type { Change } from '../../src/classify/types.js';
 import type { MappingResult, MappingSuggestion, Verdict } from '../../src/rescore/types.js';
 import type { CheckReport } from '../../src/report/types.js';
+import { impactOf } from '../../src/rank/rankByImpact.js';
 import { makeCheckReport } from './checkReport.js';
-
-const WEIGHT: Record<Verdict, number> = { broken: 1, drifted: 0.9, ambiguous: 0.7, redirect: 0.5, context_changed: 0.3, ok: 0, unknown_target: 0.8 };
 
 function candidates(c: Change | undefined): MappingSuggestion[] {
   if (!c) return [];
@@ -60,7 +59,7 @@ export async function demoCheckReport(): Promise<CheckReport> {
       score_old: e.verdict === 'unknown_target' ? null : 0.88,
       score_new: e.verdict === 'ok' ? 0.88 : e.verdict === 'broken' ? null : 0.31,
       suggestions: e.verdict === 'ok' ? [] : candidates(changes[0]).slice(0, 5),
-      impact: Math.round(WEIGHT[e.verdict] * m.usage * 10) / 10,
+      impact: impactOf(e.verdict, m.usage),
       change_ids: changes.map((c) => c.id),
       reasons: e.note ? [e.note] : [],
       line: m.line,

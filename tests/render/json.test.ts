@@ -8,7 +8,11 @@ import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import Ajv2020 from 'ajv/dist/2020.js';
 import { renderJson } from '../../src/render/json.js';
-import { runDiff } from '../../src/pipeline.js';
+import { diffReleases, loadDiffInputs, runDiff } from '../../src/pipeline.js';
+import { loadMappings } from '../../src/load/index.js';
+import { rescoreMappings } from '../../src/rescore/rescoreMappings.js';
+import { rankByImpact } from '../../src/rank/rankByImpact.js';
+import { makeCheckReport } from '../helpers/checkReport.js';
 import { CHANGE_KINDS } from '../../src/classify/types.js';
 import { VERDICTS } from '../../src/rescore/types.js';
 import { ROW_PROBLEMS } from '../../src/load/types.js';
@@ -50,6 +54,18 @@ describe('docs/report.schema.json', () => {
     expect(report.changes.length).toBeGreaterThan(10);
     expect(check(JSON.parse(renderJson(report)))).toEqual([]);
     expect(check(JSON.parse(renderJson(await demoCheckReport())))).toEqual([]);
+  });
+
+  it('accepts a check report from the real rescoring of the demo mappings', async () => {
+    // Assembled as `check` does (rescoreMappings, then rankByImpact); replace with runCheck once the pipeline has it.
+    const inputs = await loadDiffInputs({ old: 'demo-data/release-r1.tsv', new: 'demo-data/release-r2.tsv', oldHierarchy: 'demo-data/hierarchy-r1.tsv', newHierarchy: 'demo-data/hierarchy-r2.tsv', history: 'demo-data/history-r2.tsv' });
+    const { report, context } = diffReleases(inputs);
+    const set = await loadMappings('demo-data/mappings.tsv');
+    const result = rescoreMappings(context, report.changes, set);
+    const real = makeCheckReport(report, rankByImpact(result.mappings), { mappingsInput: { role: 'mappings', path: set.path, sha256: set.sha256, accounting: set.accounting } });
+    real.scorer = result.scorer;
+    expect(real.mappings.length).toBe(set.mappings.length);
+    expect(check(JSON.parse(renderJson(real)))).toEqual([]);
   });
 
   it('rejects reports that break the contract', async () => {

@@ -15,13 +15,22 @@ describe('buildView', () => {
     expect(view.actions.every((m) => m.verdict !== 'ok')).toBe(true);
   });
 
-  it('groups mappings under their change; the group with the larger impact first, a tie by first local code', async () => {
+  it('groups mappings under their change, the larger total impact first, those no change touches last', async () => {
     const view = buildView(await hostileCheck());
-    expect(view.groups.map((g) => [g.change?.kind ?? null, g.mappings.map((m) => m.local_code)])).toEqual([
-      ['split', [FORMULA]],
-      [null, ['\tTAB']],
-      ['retirement', ['\rCR', '+1']],
+    expect(view.groups.map((g) => [g.change?.kind ?? null, g.impact, g.mappings.map((m) => m.local_code)])).toEqual([
+      ['retirement', 600, ['\rCR', '+1']],
+      ['split', 500, [FORMULA]],
+      [null, 300, ['\tTAB']],
     ]);
+  });
+
+  it('lists a mapping under its most dangerous change, the smaller id on a tie', async () => {
+    const report = await hostileCheck();
+    const split = report.changes.find((c) => c.kind === 'split')!.id;
+    const renamed = report.changes.find((c) => c.kind === 'preferred_term_change')!.id;
+    const m = { ...report.mappings[0], change_ids: [renamed, 'not-in-report', split] };
+    const view = buildView({ ...report, mappings: [m] });
+    expect(view.groups.map((g) => g.change?.id)).toEqual([split]);
   });
 
   it('filters by the verdicts asked for, ok included when asked', async () => {
