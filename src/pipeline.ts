@@ -3,14 +3,19 @@
  * Each stage is a function of typed data; this file only chains them and gathers the inputs'
  * accounting for the report.
  */
-import { loadHierarchy, loadHistory, loadRelease } from './load/index.js';
+import { loadHierarchy, loadHistory, loadMappings, loadRelease } from './load/index.js';
+import type { MappingSet } from './load/types.js';
+import { rescoreMappings, type RescoreOptions } from './rescore/rescoreMappings.js';
+import { rankByImpact, groupByChange } from './rank/rankByImpact.js';
+import { VERDICTS, type Verdict } from './rescore/types.js';
+import { countReaching, type FailLevel } from './rank/failOn.js';
 import type { ColumnRenames } from './load/columns.js';
 import type { Diagnostic, Hierarchy, HistoryTable, Loaded, Release } from './load/types.js';
 import { buildContext, type DiffContext } from './classify/context.js';
 import { classifyChanges } from './classify/classifyChanges.js';
 import { CHANGE_KINDS, type ChangeKind } from './classify/types.js';
 import type { Thresholds } from './classify/thresholds.js';
-import type { DiffReport, InputInfo } from './report/types.js';
+import type { CheckReport, DiffReport, InputInfo } from './report/types.js';
 import { CAUTION } from './report/caution.js';
 import { NAME, VERSION } from './version.js';
 
@@ -92,4 +97,50 @@ export async function runDiff(options: DiffOptions): Promise<{ report: DiffRepor
   const inputs = await loadDiffInputs(options);
   const { report, context } = diffReleases(inputs, options);
   return { report, context, inputs };
+}
+
+export interface CheckOptions extends DiffOptions {
+  /** The mapping set: CSV/TSV, SSSOM TSV (or FHIR ConceptMap JSON, see load/loadMappings.ts). */
+  mappings: string;
+  /** Exit-1 level for schedulers; recorded in the report. */
+  failOn?: FailLevel;
+  rescore?: RescoreOptions;
+}
+
+/** Rescore already-loaded inputs: the library entry point of `check` that does no I/O. */
+export function checkReleases(inputs: DiffInputs, mappings: MappingSet, options: { thresholds?: Partial<Thresholds>; now?: string; failOn?: FailLevel; rescore?: RescoreOptions } = {}): { report: CheckReport; context: DiffContext } {
+  const { report: diff, context } = diffReleases(inputs, options);
+  const rescored = rescoreMappings(context, diff.changes, mappings, options.rescore);
+  const ranked = rankByImpact(rescored.mappings);
+  const grouped = groupByChange(ranked, diff.changes);
+  const verdictSummary = Object.fromEntries(VERDICTS.map((v) => [v, 0])) as Record<Verdict, number>;
+  for (const m of ranked) verdictSummary[m.verdict]++;
+  const { rejected, warnings } = splitDiagnostics([mappings]);
+  const report: CheckReport = {
+    ...diff,
+    inputs: [...diff.inputs, { role: 'mappings', path: mappings.path, sha256: mappings.sha256, accounting: mappings.accounting }],
+    rejected_rows: [...diff.rejected_rows, ...rejected],
+    warnings: [...diff.warnings, ...warnings],
+    mappings: ranked,
+    scorer: rescored.scorer,
+    verdict_summary: verdictSummary,
+    changes_without_mappings: grouped.changes_without_mappings,
+  };
+  if (options.failOn) {
+    const n = countReaching(ranked.map((m) => m.verdict), options.failOn);
+    report.fail_on = { level: options.failOn, reached: n > 0, mappings: n };
+  }
+  if (options.now) {
+    // Keep generated_at last, as in a diff report.
+    delete report.generated_at;
+    report.generated_at = options.now;
+  }
+  return { report, context };
+}
+
+/** Load, diff and re-score. */
+export async function runCheck(options: CheckOptions): Promise<{ report: CheckReport; context: DiffContext; inputs: DiffInputs; mappings: MappingSet }> {
+  const [inputs, mappings] = await Promise.all([loadDiffInputs(options), loadMappings(options.mappings, {})]);
+  const { report, context } = checkReleases(inputs, mappings, options);
+  return { report, context, inputs, mappings };
 }
