@@ -22,7 +22,10 @@
  *  - status = inactive when Deprecated is set; category = the record's Type;
  *  - history: a deprecated record with a Preferred-Value → `replaced_by` its target; a
  *    record that is not deprecated but has one (extlang records, whose Preferred-Value is
- *    the equivalent language subtag) → `same_as`;
+ *    the equivalent language subtag) → `same_as`; a deprecated record whose Comments say
+ *    "see X, Y" → one `consider` row per record named (the publisher names the records its
+ *    meaning went to and leaves the choice to the user, which is what OBO's `consider`
+ *    says; "see also X" names a related record and writes no row);
  *  - hierarchy: Macrolanguage → the record is encompassed by that language;
  *  - publisher notes: for every deprecated record, its Deprecated date, Preferred-Value and
  *    Comments, with the ids named by comments of the form "see X, Y" / "see X and Y".
@@ -558,6 +561,7 @@ export function languageSubtagsToRelease(parsed: ParsedLanguageSubtagRegistry): 
     duplicateDescriptionsDropped: 0,
     historyReplacedBy: 0,
     historySameAs: 0,
+    historyConsider: 0,
     historyTargetsComposite: 0,
     historyTargetsMissing: 0,
     hierarchyEdges: 0,
@@ -626,6 +630,10 @@ export function languageSubtagsToRelease(parsed: ParsedLanguageSubtagRegistry): 
         preferredTag ??= parsePreferredTagComment(c);
       }
       if (hadList) counts.notesWithSeeList++;
+      for (const sid of seeAlso) {
+        history.push({ old_id: id, new_id: sid, relation: 'consider' });
+        counts.historyConsider++;
+      }
       notes.push({ id, deprecated: rec.deprecated, preferredValue: rec.preferredValue ?? null, preferredId, comments: [...rec.comments], seeAlso, preferredTag });
       counts.publisherNotes++;
     }

@@ -130,7 +130,7 @@ describe('mapping to release tables', () => {
     for (const [out, pkg] of [[out2014, PKG_2014], [out2025, PKG_2025]] as const) {
       const raw = rawRecords(pkg);
       const withPv = raw.filter((r) => r['Preferred-Value'] !== undefined);
-      expect(out.history).toHaveLength(withPv.length);
+      expect(out.history.filter((h) => h.relation !== 'consider')).toHaveLength(withPv.length);
       expect(out.counts.historyReplacedBy).toBe(withPv.filter((r) => r.Deprecated !== undefined).length);
       expect(out.counts.historySameAs).toBe(withPv.filter((r) => r.Deprecated === undefined).length);
       // Every non-deprecated record with a Preferred-Value is an extlang (RFC 5646 3.1.7 makes it mandatory there).
@@ -142,6 +142,31 @@ describe('mapping to release tables', () => {
     expect(historyOf(out2025, 'region:BU')).toEqual([{ old_id: 'region:BU', new_id: 'region:MM', relation: 'replaced_by' }]);
     // extlang yue (Cantonese under the zh prefix) is the same as language yue (registry file itself).
     expect(historyOf(out2025, 'extlang:yue')).toEqual([{ old_id: 'extlang:yue', new_id: 'language:yue', relation: 'same_as' }]);
+  });
+
+  it('writes a consider row for every record a deprecated record\'s "see X, Y" comment names', () => {
+    // IANA Language Subtag Registry, File-Date 2025-08-25, Comments fields: language:ais "see ami, szy";
+    // region:YU "see BA, HR, ME, MK, RS, or SI"; language:duj "see dwu, dwy".
+    expect(historyOf(out2025, 'language:ais')).toEqual([
+      { old_id: 'language:ais', new_id: 'language:ami', relation: 'consider' },
+      { old_id: 'language:ais', new_id: 'language:szy', relation: 'consider' },
+    ]);
+    expect(historyOf(out2025, 'region:YU').map((h) => `${h.relation} ${h.new_id}`)).toEqual(['BA', 'HR', 'ME', 'MK', 'RS', 'SI'].map((c) => `consider region:${c}`));
+    expect(historyOf(out2025, 'language:duj').map((h) => h.new_id)).toEqual(['language:dwu', 'language:dwy']);
+    for (const out of [out2014, out2025]) {
+      const consider = out.history.filter((h) => h.relation === 'consider');
+      // One row per (record, named record): the notes' seeAlso lists, nothing more.
+      expect(consider.map((h) => `${h.old_id}>${h.new_id}`)).toEqual(out.notes.flatMap((n) => n.seeAlso.map((s) => `${n.id}>${s}`)));
+      expect(out.counts.historyConsider).toBe(consider.length);
+      // Only deprecated records get them; "see also X" and "…; see lyg" on active records write none.
+      const status = statusById(out);
+      expect(consider.every((h) => status.get(h.old_id) === 'inactive')).toBe(true);
+    }
+    expect(historyOf(out2025, 'language:kha')).toEqual([]);
+    expect(historyOf(out2025, 'region:003')).toEqual([]);
+    // Measured: 111 rows in the 2014 file (45 lists), 182 in the 2025 file (70 lists).
+    expect(out2014.counts.historyConsider).toBe(111);
+    expect(out2025.counts.historyConsider).toBe(182);
   });
 
   it('keeps composite Preferred-Value tags as tag: ids and counts them', () => {
@@ -209,7 +234,8 @@ describe('what changed between File-Date 2014-03-13 and 2025-08-25', () => {
   it('language:ais is split: deprecated without Preferred-Value, "see ami, szy"', () => {
     expect(s2014.get('language:ais')).toBe('active');
     expect(s2025.get('language:ais')).toBe('inactive');
-    expect(historyOf(out2025, 'language:ais')).toEqual([]);
+    // No Preferred-Value, so no replaced_by row; the "see" list gives consider rows only.
+    expect(historyOf(out2025, 'language:ais').map((h) => h.relation)).toEqual(['consider', 'consider']);
     expect(notes.get('language:ais')).toEqual({
       id: 'language:ais',
       deprecated: '2019-04-16',
