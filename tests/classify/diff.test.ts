@@ -132,6 +132,21 @@ describe('diff on hand-built pairs', () => {
     expect(ret?.kind === 'retirement' && ret.evidence.suggestions[0]?.concept_id).toBe('N');
   });
 
+  it("keeps every successor the history's consider rows name, first, above closer lexical neighbours", async () => {
+    // R's name is close to N's, but the publisher says "consider C1, C2, C3" (three rows, more
+    // than maxSuggestions = 2): all three come first, the neighbour only fills a free place.
+    const old = STABLE + 'R disorder: Iron deficiency anaemia*';
+    const neu = STABLE + 'R disorder (inactive): Iron deficiency anaemia*\nN disorder: Anaemia due to iron deficiency*\nC1 disorder: Sideropenia*\nC2 disorder: Chlorosis*\nC3 disorder: Hypochromia*';
+    const history = 'R > C1 consider\nR > C2 consider\nR > C3 consider';
+    const suggestions = async (maxSuggestions: number) => {
+      const { report } = diffReleases(await loadPair({ old, new: neu, history }), { thresholds: { maxSuggestions } });
+      const ret = report.changes.find((c) => c.kind === 'retirement');
+      return ret?.kind === 'retirement' ? ret.evidence.suggestions.map((s) => `${s.concept_id} ${s.reason}`) : [];
+    };
+    expect(await suggestions(2)).toEqual(['C1 history_consider', 'C2 history_consider', 'C3 history_consider']);
+    expect(await suggestions(5)).toEqual(['C1 history_consider', 'C2 history_consider', 'C3 history_consider', 'N lexical_neighbour']);
+  });
+
   it('does not match normalized terms across categories', async () => {
     const old = STABLE + 'A finding: Cold* | Feeling cold\nB disorder: Common cold*';
     const neu = STABLE + 'B disorder: Common cold* | COLD';

@@ -2,6 +2,9 @@
  * retirement: a concept became inactive or disappeared and no concept carries its terms.
  * Successors are still proposed, in this order of evidence: `consider` rows of the history
  * table, stray terms that went to other concepts, and lexical neighbours in the new release.
+ * The `consider` rows are the publisher's own record, so they come first and are all kept;
+ * the guesses (stray terms, neighbours) are ranked by score and fill the list up to
+ * `maxSuggestions`.
  */
 import type { Detector } from '../detector.js';
 import { conceptLabel, makeChange, movesOf, rankSuccessors } from '../detector.js';
@@ -10,13 +13,18 @@ import type { Successor } from '../types.js';
 import { groupsOf } from './structural.js';
 
 export function proposeSuccessors(ctx: DiffContext, o: OldNode): Successor[] {
-  const out: Successor[] = [];
+  const named: Successor[] = [];
   const h = ctx.input.history;
   if (h) {
     for (const id of resolveHistory(h, ctx.new, o.id, false).targets) {
-      out.push({ concept_id: id, label: conceptLabel(ctx.new, ctx.new.conceptIndex.get(id)!), score: 0.5, reason: 'history_consider' });
+      named.push({ concept_id: id, label: conceptLabel(ctx.new, ctx.new.conceptIndex.get(id)!), score: 0.5, reason: 'history_consider' });
     }
   }
+  // Ranked by score alone, a lexical neighbour above 0.5 pushed the publisher's `consider`
+  // rows down and the cut at maxSuggestions dropped them (found on the IANA Language Subtag
+  // Registry, where "see X, Y" lists name up to nine records).
+  const isNamed = new Set(named.map((s) => s.concept_id));
+  const out: Successor[] = [];
   for (const [n, terms] of o.flows) {
     if (!isActive(ctx.new, n)) continue;
     out.push({ concept_id: ctx.new.conceptIds[n], label: conceptLabel(ctx.new, n), score: round(terms.length / Math.max(1, o.terms.length)), reason: 'term_flow' });
@@ -29,7 +37,8 @@ export function proposeSuccessors(ctx: DiffContext, o: OldNode): Successor[] {
       out.push({ concept_id: ctx.new.conceptIds[hit.concept], label: conceptLabel(ctx.new, hit.concept), score: round(hit.score), reason: 'lexical_neighbour' });
     }
   }
-  return rankSuccessors(out, ctx.thresholds.maxSuggestions);
+  const guesses = out.filter((s) => !isNamed.has(s.concept_id));
+  return [...rankSuccessors(named, named.length), ...rankSuccessors(guesses, Math.max(0, ctx.thresholds.maxSuggestions - named.length))];
 }
 
 export const retirement: Detector<'retirement'> = {
