@@ -18,8 +18,8 @@ import type { Hierarchy, HistoryRow, HistoryTable, Release } from '../load/types
 import { ACTIVE, PREFERRED } from '../load/types.js';
 import { alignTerms, activeTerms } from '../align/alignTerms.js';
 import type { Alignment } from '../align/types.js';
-import { lexicalKey } from '../text/normalize.js';
-import { tokenJaccard } from '../text/similarity.js';
+import { foldTerm, lexicalKey } from '../text/normalize.js';
+import { levenshteinSimilarity, tokenJaccard } from '../text/similarity.js';
 import { ConceptIndex } from '../rescore/conceptIndex.js';
 import { DEFAULT_THRESHOLDS, type Thresholds } from './thresholds.js';
 import type { FlowCell, HistoryEvidence } from './types.js';
@@ -99,17 +99,51 @@ export function categoryName(r: Release, c: number): string | null {
   return i < 0 ? null : r.categories[i];
 }
 
+/** Below this normalized edit similarity two folded terms are not respellings of each other. */
+const RESPELLING_MIN = 0.75;
+
 /**
- * Similarity of two term sets: for each term its best token-Jaccard (of lexical keys) against
- * the other set, averaged over both sets. A mean, not a maximum, so that one shared generic word
- * ("level", "measurement") cannot make two unrelated concepts look alike. 0 when a side is empty.
+ * Similarity of one pair of terms, 0..1: the token-Jaccard of their lexical keys; for a
+ * respelling (normalized Levenshtein similarity of the folded forms of at least 0.75, e.g.
+ * "Bunaba" / "Bunuba") that similarity; for one term whose words are all in the other
+ * ("Kuman" / "Kuman (Papua New Guinea)") at least 0.5.
+ */
+export function termPairSimilarity(a: string, b: string): number {
+  const ka = lexicalKey(a).split(' ');
+  const kb = lexicalKey(b).split(' ');
+  let sim = tokenJaccard(ka, kb);
+  if (sim < 1) {
+    const contained = ka.every((t) => kb.includes(t)) || kb.every((t) => ka.includes(t));
+    if (contained) sim = Math.max(sim, 0.5);
+    const fa = foldTerm(a);
+    const fb = foldTerm(b);
+    if (Math.abs(fa.length - fb.length) <= Math.max(fa.length, fb.length) * (1 - RESPELLING_MIN)) {
+      const lev = levenshteinSimilarity(fa, fb);
+      if (lev >= RESPELLING_MIN) sim = Math.max(sim, lev);
+    }
+  }
+  return sim;
+}
+
+/**
+ * Similarity of two term sets: for each term its best pair similarity (termPairSimilarity)
+ * against the other set, averaged over both sets. A mean, not a maximum, so that one shared
+ * generic word ("level", "measurement") cannot make two unrelated concepts look alike.
+ * 0 when a side is empty.
  */
 export function termSetSimilarity(a: string[], b: string[]): number {
   if (a.length === 0 || b.length === 0) return 0;
-  const ka = a.map((t) => lexicalKey(t).split(' '));
-  const kb = b.map((t) => lexicalKey(t).split(' '));
-  const meanBest = (xs: string[][], ys: string[][]) => xs.reduce((sum, x) => sum + Math.max(...ys.map((y) => tokenJaccard(x, y))), 0) / xs.length;
-  return (meanBest(ka, kb) + meanBest(kb, ka)) / 2;
+  const best = a.map(() => 0);
+  const bestB = b.map(() => 0);
+  for (let i = 0; i < a.length; i++) {
+    for (let j = 0; j < b.length; j++) {
+      const s = termPairSimilarity(a[i], b[j]);
+      if (s > best[i]) best[i] = s;
+      if (s > bestB[j]) bestB[j] = s;
+    }
+  }
+  const mean = (xs: number[]) => xs.reduce((x, y) => x + y, 0) / xs.length;
+  return (mean(best) + mean(bestB)) / 2;
 }
 
 /** Resolve a history chain from `id` to active concepts of the new release (cycle-safe). */
