@@ -51,8 +51,10 @@ export interface TextForms {
 }
 
 export function textForms(text: string): TextForms {
-  const lexical = lexicalKey(text);
-  return { text, nfc: text.normalize('NFC'), folded: foldTerm(text), lexical, stems: lexical === '' ? [] : lexical.split(' ') };
+  const folded = foldTerm(text);
+  // foldTerm is a fixed point, so the key of the folded form is the key of the text.
+  const lexical = lexicalKey(folded);
+  return { text, nfc: text.normalize('NFC'), folded, lexical, stems: lexical === '' ? [] : lexical.split(' ') };
 }
 
 /** Active terms of concept c (term_status active), in release order. */
@@ -85,10 +87,13 @@ export function releaseDocumentFrequencies(r: Release, maxTerms = 300_000): Docu
   return df;
 }
 
-/** One term of a concept with its forms. */
+/** One term of a concept with its forms; the lexical key and stems are filled on first use. */
 interface TermEntry {
   term: number;
-  forms: TextForms;
+  nfc: string;
+  folded: string;
+  lexical?: string;
+  stems?: string[];
 }
 
 /** Result of the lexical comparison of a label with a concept. */
@@ -112,40 +117,69 @@ export class ReleaseFeatures {
     this.df = df;
   }
 
-  /** Active terms of concept c with their forms (cached). */
-  terms(c: number): readonly TermEntry[] {
+  /** Active terms of concept c with their NFC and folded forms (cached). */
+  private terms(c: number): TermEntry[] {
     let entry = this.cache.get(c);
     if (!entry) {
-      entry = activeTermsOf(this.release, c).map((t) => ({ term: t, forms: textForms(this.release.termText[t]) }));
+      entry = activeTermsOf(this.release, c).map((t) => {
+        const text = this.release.termText[t];
+        return { term: t, nfc: text.normalize('NFC'), folded: foldTerm(text) };
+      });
       this.cache.set(c, entry);
     }
     return entry;
+  }
+
+  private static fillLexical(e: TermEntry): void {
+    if (e.lexical === undefined) {
+      e.lexical = lexicalKey(e.folded);
+      e.stems = e.lexical === '' ? [] : e.lexical.split(' ');
+    }
   }
 
   /**
    * Write the lexical features of `label` against concept c into out[offset .. offset+7),
    * skipping term `skipTerm` (training leaves the label's own term out). A concept with no
    * active term gets all zeros.
+   *
+   * Fast path: when the label's folded form equals a term's, every feature but `exact` is at
+   * its maximum of 1 (equal folded forms have equal lexical keys), so only `exact` is checked
+   * against the other terms; most labels of a mapping set are copies of a term.
    */
   lexical(label: TextForms, c: number, out: Float64Array, offset = 0, skipTerm = -1): LexicalMatch {
     for (let j = 0; j < LEXICAL_COUNT; j++) out[offset + j] = 0;
+    const terms = this.terms(c);
+    let foldedHit = -1;
+    let exact = 0;
+    for (const e of terms) {
+      if (e.term === skipTerm) continue;
+      if (e.nfc === label.nfc) exact = 1;
+      if (foldedHit < 0 && e.folded === label.folded) foldedHit = e.term;
+    }
+    if (foldedHit >= 0) {
+      out[offset] = exact;
+      for (let j = 1; j < LEXICAL_COUNT; j++) out[offset + j] = 1;
+      return { bestTerm: foldedHit };
+    }
     let bestTerm = -1;
     let bestKey = -1;
-    for (const { term, forms } of this.terms(c)) {
-      if (term === skipTerm) continue;
-      const exact = forms.nfc === label.nfc ? 1 : 0;
-      const folded = forms.folded === label.folded ? 1 : 0;
-      const lexical = forms.lexical !== '' && forms.lexical === label.lexical ? 1 : 0;
-      const tfidf = tfidfCosine(label.stems, forms.stems, this.df);
-      const trigram = folded ? 1 : trigramDice(label.folded, forms.folded);
-      const jw = folded ? 1 : jaroWinkler(label.folded, forms.folded);
-      const lev = folded ? 1 : levenshteinSimilarity(label.folded, forms.folded);
-      const values = [exact, folded, lexical, tfidf, trigram, jw, lev];
-      for (let j = 0; j < LEXICAL_COUNT; j++) if (values[j] > out[offset + j]) out[offset + j] = values[j];
-      const key = trigram * 2 + tfidf;
+    for (const e of terms) {
+      if (e.term === skipTerm) continue;
+      ReleaseFeatures.fillLexical(e);
+      const values = [
+        0,
+        0,
+        e.lexical !== '' && e.lexical === label.lexical ? 1 : 0,
+        tfidfCosine(label.stems, e.stems!, this.df),
+        trigramDice(label.folded, e.folded),
+        jaroWinkler(label.folded, e.folded),
+        levenshteinSimilarity(label.folded, e.folded),
+      ];
+      for (let j = 2; j < LEXICAL_COUNT; j++) if (values[j] > out[offset + j]) out[offset + j] = values[j];
+      const key = values[4] * 2 + values[3];
       if (key > bestKey) {
         bestKey = key;
-        bestTerm = term;
+        bestTerm = e.term;
       }
     }
     return { bestTerm };

@@ -272,13 +272,12 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     // Outside the changed frontier: same id, status, category and terms in both releases.
     if (!node && cNew !== undefined && !ctx.news.has(cNew)) {
       const sNew = scoreNew(label, cNew, targetCtx, lexOld);
-      add(cNew, 'current_target');
+      candidates.set(cNew, { n: cNew, reason: 'current_target', score: sNew });
       addFrontier();
-      const list = ranked();
-      const target = candidates.get(cNew)!;
-      const better = list.find((c) => c.n !== cNew && c.score >= th.credibleMin && c.score > target.score + th.betterMargin);
+      const list = candidates.size > 1 ? ranked() : [];
+      const better = list.find((c) => c.n !== cNew && c.score >= th.credibleMin && c.score > sNew + th.betterMargin);
       if (better) {
-        reasons.unshift(`The label now matches ${describe(better)} better than the target (${round3(target.score)}).`);
+        reasons.unshift(`The label now matches ${describe(better)} better than the target (${round3(sNew)}).`);
         return finish('drifted', scoreOld, sNew);
       }
       const moved = parentsChanged(id);
