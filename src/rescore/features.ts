@@ -73,7 +73,7 @@ export function activeTermsOf(r: Release, c: number): number[] {
  * millions of terms is estimated from a sample (IDF depends on the ratio df/N, which a
  * systematic sample keeps); rare tokens missing from the sample get the largest IDF.
  */
-export function releaseDocumentFrequencies(r: Release, maxTerms = 300_000): DocumentFrequencies {
+export function releaseDocumentFrequencies(r: Release, maxTerms = 100_000): DocumentFrequencies {
   const df = new DocumentFrequencies();
   const active: number[] = [];
   for (let t = 0; t < r.termCount; t++) {

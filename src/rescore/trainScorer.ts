@@ -64,11 +64,11 @@ export interface TrainOptions {
   hitsPerQuery?: number;
   /** A release with more active concepts than this is searched within a pool of this many sampled concepts. Default 2,000. */
   poolConcepts?: number;
-  /** Terms read for the document frequencies at most. Default 300,000. */
+  /** Terms read for the document frequencies at most. Default 100,000. */
   dfTerms?: number;
 }
 
-const DEFAULTS = { pairs: 20_000, holdOut: 0.25, seed: 1, l2: 1, hardShare: 0.5, neighbourShare: 0.25, neighbourContextShare: 0.25, leaveOutShare: 0.5, hitsPerQuery: 5, poolConcepts: 2_000, dfTerms: 300_000 };
+const DEFAULTS = { pairs: 20_000, holdOut: 0.25, seed: 1, l2: 1, hardShare: 0.5, neighbourShare: 0.25, neighbourContextShare: 0.25, leaveOutShare: 0.5, hitsPerQuery: 5, poolConcepts: 2_000, dfTerms: 100_000 };
 
 /** A trained scorer: the model, the document frequencies and per-release feature caches. */
 export class Scorer {
