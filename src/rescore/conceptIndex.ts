@@ -1,15 +1,24 @@
 /**
- * ConceptIndex: an inverted index over the active concepts of a release, for nearest-concept
- * search when a concept vanished without a trace (no term flow, no history row).
+ * ConceptIndex: an inverted index over the active terms of a release, for nearest-concept search
+ * when a concept vanished without a trace (no term flow, no history row) and for mappings whose
+ * target needs successors.
  *
- * Keys are the stems of each term's lexical key (text/normalize.ts) and, for robustness to
- * typos and abbreviations, the character 3-grams of its folded form. A query accumulates
- * IDF-weighted overlaps over the postings, keeps the best candidates, and returns their
- * concepts. Built lazily, once per release, and only when something needs it.
+ * Built for releases of millions of terms. The index keys are word stems (the tokens of the
+ * lexical key, text/normalize.ts); postings are compressed sparse rows in typed arrays (about
+ * 4 bytes per term and word). Typos and spelling variants in a query are handled by a second,
+ * much smaller index over the vocabulary: character 3-grams → stems, used to expand a query word
+ * to the vocabulary words within a trigram-Dice of `fuzzyMin`. (A first version indexed the
+ * 3-grams of every term: at 500,000 terms it took 21 s to build and 0.8 s per query; this one is
+ * measured in docs/BENCHMARKS.md.)
+ *
+ * Scores are IDF-weighted Dice overlaps of word sets (0..1); the best term of each concept counts.
+ * Words on more than `maxPosting` terms are too common to rank by: a query of such words only is
+ * ranked by its rarest word. Built lazily, once per release, and only when something needs it.
  */
 import type { Release } from '../load/types.js';
 import { ACTIVE } from '../load/types.js';
-import { foldTerm, lexicalKey } from '../text/normalize.js';
+import { STOP_WORDS, foldTerm, stemToken } from '../text/normalize.js';
+import { GrowableInt32 } from '../load/growable.js';
 
 export interface IndexHit {
   concept: number;
@@ -19,73 +28,172 @@ export interface IndexHit {
   score: number;
 }
 
-function trigrams(folded: string): string[] {
-  const s = ` ${folded} `;
+export interface ConceptIndexOptions {
+  /** Words with more postings than this are skipped when the query has rarer words. */
+  maxPosting?: number;
+  /** Lowest trigram-Dice for a vocabulary word to stand in for a query word. */
+  fuzzyMin?: number;
+  /** Vocabulary words a query word may expand to. */
+  fuzzyMax?: number;
+}
+
+function trigrams(word: string): string[] {
+  const s = ` ${word} `;
   const out: string[] = [];
   for (let i = 0; i + 3 <= s.length; i++) out.push(s.slice(i, i + 3));
   return out;
 }
 
-/** Keys of one text: stems prefixed 'w', trigrams prefixed 'g', deduplicated. */
-export function indexKeys(text: string): string[] {
-  const stems = lexicalKey(text).split(' ').filter(Boolean).map((w) => `w${w}`);
-  const grams = trigrams(foldTerm(text)).map((g) => `g${g}`);
-  return [...new Set([...stems, ...grams])];
+/** Stems of a text, deduplicated, stop words dropped (the tokens of its lexical key). */
+export function indexWords(text: string): string[] {
+  const folded = foldTerm(text);
+  if (folded === '') return [];
+  const out: string[] = [];
+  for (const token of folded.split(' ')) {
+    if (STOP_WORDS.has(token)) continue;
+    const stem = stemToken(token);
+    if (!out.includes(stem)) out.push(stem);
+  }
+  return out.length ? out : [folded];
 }
 
 export class ConceptIndex {
   readonly release: Release;
-  private readonly postings = new Map<string, number[]>();
+  private readonly wordIds = new Map<string, number>();
+  private readonly words: string[] = [];
+  /** postings of word w: terms[start[w] .. start[w+1]) */
+  private readonly start: Int32Array;
+  private readonly terms: Int32Array;
+  private readonly idfs: Float64Array;
   private readonly termNorm: Float64Array;
-  private readonly termCount: number;
+  /** trigram → vocabulary words (for fuzzy expansion), built on first need */
+  private gramIndex: Map<string, number[]> | null = null;
+  private readonly scratch: Float64Array;
+  private readonly opts: Required<ConceptIndexOptions>;
 
-  constructor(release: Release) {
+  constructor(release: Release, options: ConceptIndexOptions = {}) {
     this.release = release;
-    let n = 0;
+    this.opts = { maxPosting: options.maxPosting ?? 50_000, fuzzyMin: options.fuzzyMin ?? 0.6, fuzzyMax: options.fuzzyMax ?? 3 };
+    // Pass 1: words of every active term, as (word, term) pairs; a folded-token cache spares
+    // stemming the same token millions of times.
+    const tokenWord = new Map<string, number>();
+    const pw = new GrowableInt32(1 << 16);
+    const pt = new GrowableInt32(1 << 16);
+    let active = 0;
+    const texts = release.termText;
     for (let t = 0; t < release.termCount; t++) {
       if (release.conceptStatus[release.termConcept[t]] !== ACTIVE || release.termStatus[t] !== ACTIVE) continue;
-      n++;
-      for (const k of indexKeys(release.termText[t])) {
-        const list = this.postings.get(k);
-        if (list) list.push(t);
-        else this.postings.set(k, [t]);
+      active++;
+      const folded = foldTerm(texts[t]);
+      if (folded === '') continue;
+      const first = pw.length;
+      for (const token of folded.split(' ')) {
+        let w = tokenWord.get(token);
+        if (w === undefined) {
+          w = STOP_WORDS.has(token) ? -1 : this.wordId(stemToken(token));
+          tokenWord.set(token, w);
+        }
+        if (w < 0) continue;
+        let dup = false;
+        for (let k = first; k < pw.length; k++) if (pw.data[k] === w) { dup = true; break; }
+        if (!dup) { pw.push(w); pt.push(t); }
       }
+      if (pw.length === first) { pw.push(this.wordId(folded)); pt.push(t); }
     }
-    this.termCount = n;
+    const pairWord = pw.data;
+    const pairTerm = pt.data;
+    const pairs = pw.length;
+    // Pass 2: compressed sparse rows.
+    const nWords = this.words.length;
+    const start = new Int32Array(nWords + 1);
+    for (let k = 0; k < pairs; k++) start[pairWord[k] + 1]++;
+    for (let w = 0; w < nWords; w++) start[w + 1] += start[w];
+    const fill = start.slice(0, nWords);
+    const terms = new Int32Array(pairs);
+    for (let k = 0; k < pairs; k++) terms[fill[pairWord[k]]++] = pairTerm[k];
+    this.start = start;
+    this.terms = terms;
+    this.idfs = new Float64Array(nWords);
+    for (let w = 0; w < nWords; w++) this.idfs[w] = Math.log((active + 1) / (start[w + 1] - start[w] + 1)) + 1;
     this.termNorm = new Float64Array(release.termCount);
-    for (const [k, list] of this.postings) {
-      const w = this.idf(list.length, k);
-      for (const t of list) this.termNorm[t] += w;
-    }
+    for (let k = 0; k < pairs; k++) this.termNorm[pairTerm[k]] += this.idfs[pairWord[k]];
+    this.scratch = new Float64Array(release.termCount);
   }
 
-  /** Stems weigh more than trigrams: a shared word says more than a shared letter run. */
-  private idf(df: number, key: string): number {
-    const base = Math.log((this.termCount + 1) / (df + 1)) + 1;
-    return key.charCodeAt(0) === 119 /* w */ ? 2 * base : base;
+  private wordId(word: string): number {
+    let w = this.wordIds.get(word);
+    if (w === undefined) {
+      w = this.words.length;
+      this.words.push(word);
+      this.wordIds.set(word, w);
+    }
+    return w;
+  }
+
+  /** Vocabulary words within `fuzzyMin` trigram-Dice of `word`, best first (not the word itself). */
+  private fuzzy(word: string): { w: number; weight: number }[] {
+    if (word.length < 4) return [];
+    if (!this.gramIndex) {
+      this.gramIndex = new Map();
+      for (let w = 0; w < this.words.length; w++) {
+        for (const g of new Set(trigrams(this.words[w]))) {
+          const list = this.gramIndex.get(g);
+          if (list) list.push(w);
+          else this.gramIndex.set(g, [w]);
+        }
+      }
+    }
+    const grams = [...new Set(trigrams(word))];
+    const shared = new Map<number, number>();
+    for (const g of grams) for (const w of this.gramIndex.get(g) ?? []) shared.set(w, (shared.get(w) ?? 0) + 1);
+    const out: { w: number; weight: number }[] = [];
+    for (const [w, n] of shared) {
+      const other = new Set(trigrams(this.words[w])).size;
+      const dice = (2 * n) / (grams.length + other);
+      if (dice >= this.opts.fuzzyMin && this.words[w] !== word) out.push({ w, weight: dice });
+    }
+    return out.sort((a, b) => b.weight - a.weight || a.w - b.w).slice(0, this.opts.fuzzyMax);
   }
 
   /**
-   * Concepts whose terms best match `texts` (weighted Dice of keys, best term per concept),
-   * best first; ties broken by concept index so results are deterministic.
+   * Concepts whose terms best match `texts` (IDF-weighted Dice of word sets, best term per
+   * concept), best first; ties broken by concept index so results are deterministic.
    */
   search(texts: readonly string[], limit = 10, skipConcept = -1): IndexHit[] {
     const best = new Map<number, IndexHit>();
+    const acc = this.scratch;
     for (const text of texts) {
-      const keys = indexKeys(text);
+      const query: { w: number; weight: number }[] = [];
       let qNorm = 0;
-      const overlap = new Map<number, number>();
-      for (const k of keys) {
-        const list = this.postings.get(k);
-        const w = this.idf(list?.length ?? 0, k);
-        qNorm += w;
-        if (!list || list.length > 50000) continue;
-        for (const t of list) overlap.set(t, (overlap.get(t) ?? 0) + w);
+      for (const word of indexWords(text)) {
+        const w = this.wordIds.get(word);
+        if (w !== undefined) {
+          query.push({ w, weight: 1 });
+          qNorm += this.idfs[w];
+        } else {
+          // An unknown word weighs as a word seen once; its near spellings stand in for it.
+          qNorm += Math.log(this.release.termCount + 1) + 1;
+          for (const f of this.fuzzy(word)) query.push(f);
+        }
       }
-      for (const [t, o] of overlap) {
+      const df = (q: { w: number }) => this.start[q.w + 1] - this.start[q.w];
+      const rare = query.filter((q) => df(q) <= this.opts.maxPosting);
+      // A query of common words only is ranked by its rarest word alone.
+      const used = rare.length > 0 || query.length === 0 ? rare : [query.reduce((a, b) => (df(b) < df(a) ? b : a))];
+      const touched: number[] = [];
+      for (const { w, weight } of used) {
+        const gain = this.idfs[w] * weight;
+        for (let k = this.start[w]; k < this.start[w + 1]; k++) {
+          const t = this.terms[k];
+          if (acc[t] === 0) touched.push(t);
+          acc[t] += gain;
+        }
+      }
+      for (const t of touched) {
         const c = this.release.termConcept[t];
+        const score = Math.min(1, (2 * acc[t]) / (qNorm + this.termNorm[t]));
+        acc[t] = 0;
         if (c === skipConcept) continue;
-        const score = (2 * o) / (qNorm + this.termNorm[t]);
         const had = best.get(c);
         if (!had || score > had.score || (score === had.score && t < had.term)) best.set(c, { concept: c, term: t, score });
       }
