@@ -38,13 +38,13 @@ export interface VerdictThresholds {
   redirectMin: number;
   /** A candidate below this score is not credible: not counted for ambiguity, drift or a stray-term successor. */
   credibleMin: number;
-  /** Drifted when the lexical score against the target fell by more than this. */
+  /** Drifted when the lexical score against the target fell by more than this (and to below weakMatch). */
   driftDrop: number;
   /** Drifted when another concept scores more than this above the target. */
   betterMargin: number;
   /** Ambiguous when another credible candidate scores within this of the chosen one. */
   ambiguityMargin: number;
-  /** A mapping whose old score is below this gets a reason noting the weak match (verdict unchanged). */
+  /** A score below this is a weak match: noted as a reason for the old score; a fallen new score must end below it to be drift. */
   weakMatch: number;
   /** Suggestions kept per mapping. */
   maxSuggestions: number;
@@ -87,6 +87,32 @@ interface Candidate {
 }
 
 const round3 = (x: number) => Math.round(x * 1000) / 1000;
+
+/**
+ * How often a successor in this diff has another category than the concept it succeeds: over
+ * the (old, new) pairs of the structural groups where both have a category, (differing + 1) /
+ * (pairs + 50), i.e. a prior of 2 % worth fifty pairs, moved by what the diff shows.
+ */
+export function categoryShiftShare(ctx: DiffContext): number {
+  if (!ctx.old.hasColumn.category || !ctx.new.hasColumn.category) return 0.02;
+  let pairs = 0;
+  let differing = 0;
+  for (const g of ctx.groups) {
+    for (const o of g.olds) {
+      const before = categoryName(ctx.old, o);
+      const flows = ctx.olds.get(o)?.flows;
+      for (const n of g.news) {
+        const carried = (flows?.get(n)?.length ?? 0) > 0 || g.historyEdges.some((e) => e.o === o && e.n === n);
+        if (!carried) continue;
+        const after = categoryName(ctx.new, n);
+        if (before === null || after === null) continue;
+        pairs++;
+        if (before !== after) differing++;
+      }
+    }
+  }
+  return (differing + 1) / (pairs + 50);
+}
 const quote = (s: string) => `'${s}'`;
 
 /**
@@ -100,7 +126,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   const newR = ctx.new;
   const oldH = ctx.input.oldHierarchy ?? ctx.input.newHierarchy;
   const newH = ctx.input.newHierarchy ?? ctx.input.oldHierarchy;
-  const scorer = options.scorer ?? trainScorer(newR, { hierarchy: newH, index: ctx.newIndex, ...options.training });
+  const scorer = options.scorer ?? trainScorer(newR, { hierarchy: newH, index: ctx.newIndex, categoryShiftShare: categoryShiftShare(ctx), ...options.training });
   const oldAnc = oldH ? new AncestorIndex(oldH) : undefined;
   const newAnc = newH ? (newH === oldH ? oldAnc : new AncestorIndex(newH)) : undefined;
   const bothHierarchies = ctx.input.oldHierarchy !== undefined && ctx.input.newHierarchy !== undefined;
@@ -392,7 +418,8 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
       return finish('ambiguous', scoreOld, sNew);
     }
     let list = ranked();
-    const fell = scoreOld - sLexNew > th.driftDrop;
+    // Fell: by more than driftDrop, and to below weakMatch (no longer more likely than not).
+    const fell = scoreOld - sLexNew > th.driftDrop && sLexNew < th.weakMatch;
     if (fell) {
       addHistory();
       addSearch();

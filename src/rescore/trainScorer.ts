@@ -5,11 +5,13 @@
  * - positives: a term of a concept plays the local label. In half of them (when the concept
  *   has another term) the term is left out of the concept, so the label must be recognised
  *   through a synonym; in the other half the term stays and the label is a local variant of it
- *   (unchanged, upper case, words rotated, a one-letter typo, a stop word dropped or the last
- *   word abbreviated), the way local lists write labels copied from a terminology. The "old
+ *   (unchanged, upper case, words rotated, a one-letter typo, a stop word or another word
+ *   dropped, the last word abbreviated, a word of another term appended), the way local lists write labels copied from a terminology. The "old
  *   target" of a positive is the concept itself, so its context is the concept's own; for a
  *   quarter of them it is a neighbour of the concept instead (a sibling, else a concept of the
- *   same category), as for a successor after a merge, which sits near the old target.
+ *   same category), as for a successor after a merge, which sits near the old target; and for a
+ *   small share (`categoryShiftShare`, estimated from the diff) the old target is taken to be of
+ *   another category, since some true successors do change category.
  * - negatives: the same kind of label against another concept: half are hard negatives, the
  *   lexically nearest other concepts (ConceptIndex search); a quarter are neighbours (a
  *   sibling in the hierarchy, else a concept of the same category), so that a shared context
@@ -60,6 +62,13 @@ export interface TrainOptions {
    * where the successor is near the old target but not the same node. Default 0.25.
    */
   neighbourContextShare?: number;
+  /**
+   * Share of the positives whose old target is taken to be of another category than the
+   * concept (category_differs = 1), so that the weight of a category change is learned from
+   * how often true successors change category rather than set by never seeing one.
+   * rescoreMappings estimates it from the diff. Default 0.02.
+   */
+  categoryShiftShare?: number;
   /** Hard negatives taken from one search. Default 5. */
   hitsPerQuery?: number;
   /** A release with more active concepts than this is searched within a pool of this many sampled concepts. Default 2,000. */
@@ -68,7 +77,7 @@ export interface TrainOptions {
   dfTerms?: number;
 }
 
-const DEFAULTS = { pairs: 20_000, holdOut: 0.25, seed: 1, l2: 1, hardShare: 0.5, neighbourShare: 0.25, neighbourContextShare: 0.25, leaveOutShare: 0.5, hitsPerQuery: 5, poolConcepts: 2_000, dfTerms: 100_000 };
+const DEFAULTS = { pairs: 20_000, holdOut: 0.25, seed: 1, l2: 1, hardShare: 0.5, neighbourShare: 0.25, neighbourContextShare: 0.25, categoryShiftShare: 0.02, leaveOutShare: 0.5, hitsPerQuery: 5, poolConcepts: 2_000, dfTerms: 100_000 };
 
 /** A trained scorer: the model, the document frequencies and per-release feature caches. */
 export class Scorer {
@@ -101,10 +110,20 @@ export class Scorer {
 
 const STOP = new Set(['of', 'the', 'and', 'in', 'on', 'for', 'to', 'by']);
 
-/** A local-list variant of a term: the ways labels copied from a terminology usually differ. */
-export function localVariant(text: string, rng: SeededRandom): string {
+/**
+ * A local-list variant of a term: the ways labels copied from a terminology usually differ.
+ * `qualifier` is a word the variant may append (local lists add "ward", "adult", a site…).
+ */
+export function localVariant(text: string, rng: SeededRandom, qualifier = ''): string {
   const words = text.split(' ').filter(Boolean);
-  switch (rng.int(6)) {
+  switch (rng.int(8)) {
+    case 6:
+      return qualifier ? `${text} ${qualifier}` : text;
+    case 7: {
+      if (words.length < 2) return text;
+      const k = rng.int(words.length);
+      return words.filter((_, j) => j !== k).join(' ');
+    }
     case 0:
       return text;
     case 1:
@@ -249,12 +268,16 @@ export function trainScorer(release: Release, options: TrainOptions = {}): Score
   let row = 0;
   const neighbours = neighbourFinder(release, eligible, o.hierarchy);
   /** `contextOf`: the concept standing for the old target (the label's concept unless said otherwise). */
-  const addPair = (label: string, target: number, candidate: number, positive: boolean, skipTerm: number, contextOf = target) => {
+  const addPair = (label: string, target: number, candidate: number, positive: boolean, skipTerm: number, contextOf = target, shiftCategory = false) => {
     const off = row * FEATURE_COUNT;
     const forms = textForms(label);
     feats.lexical(forms, candidate, x, off, skipTerm);
     const own = conceptContext(release, contextOf, ancestors);
     contextFeatures(own, candidate === contextOf ? own : conceptContext(release, candidate, ancestors), x, off + LEXICAL_COUNT);
+    if (shiftCategory && x[off + LEXICAL_COUNT] === 1) {
+      x[off + LEXICAL_COUNT] = 0;
+      x[off + LEXICAL_COUNT + 1] = 1;
+    }
     y[row] = positive ? 1 : 0;
     owner[row] = target;
     row++;
@@ -266,9 +289,14 @@ export function trainScorer(release: Release, options: TrainOptions = {}): Score
     const terms = activeTermsOf(release, c);
     const t = terms[rng.int(terms.length)];
     const leaveOut = terms.length > 1 && rng.next() < o.leaveOutShare;
-    const label = leaveOut ? release.termText[t] : localVariant(release.termText[t], rng);
+    let qualifier = '';
+    if (!leaveOut) {
+      const other = release.termText[activeTermsOf(release, eligible[rng.int(eligible.length)])[0]].split(' ');
+      qualifier = other[rng.int(other.length)];
+    }
+    const label = leaveOut ? release.termText[t] : localVariant(release.termText[t], rng, qualifier);
     const contextOf = rng.next() < o.neighbourContextShare ? neighbours(c, rng) ?? c : c;
-    addPair(label, c, c, true, leaveOut ? t : -1, contextOf);
+    addPair(label, c, c, true, leaveOut ? t : -1, contextOf, rng.next() < o.categoryShiftShare);
     samples.push({ concept: c, label });
   }
 
