@@ -70,6 +70,12 @@ export interface RescoreOptions {
   scorer?: Scorer;
   /** Options of the training when no scorer is given. */
   training?: TrainOptions;
+  /**
+   * Run the nearest-concept search over the whole new release for mappings that need a
+   * successor (default true). Without it, candidates come from the changes and the changed
+   * frontier only; the first search builds the release's ConceptIndex if the diff did not.
+   */
+  nearestSearch?: boolean;
 }
 
 export interface RescoreResult {
@@ -190,7 +196,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   const search = (text: string): number[] => {
     let hits = searchCache.get(text);
     if (!hits) {
-      hits = text.trim() === '' ? [] : ctx.newIndex().search([text], th.searchHits).map((h) => h.concept);
+      hits = text.trim() === '' || options.nearestSearch === false ? [] : ctx.newIndex().search([text], th.searchHits).map((h) => h.concept);
       searchCache.set(text, hits);
     }
     return hits;

@@ -11,12 +11,12 @@ import { loadPair, type PairSpec } from '../helpers/releases.js';
 import { tempDir, tsv, writeFile } from '../helpers/files.js';
 import { BASE, BASE_HIERARCHY } from './fixtures.js';
 
-async function check(spec: PairSpec, rows: [code: string, label: string, target: string][], content?: string): Promise<Map<string, MappingResult>> {
+async function check(spec: PairSpec, rows: [code: string, label: string, target: string][], content?: string, nearestSearch = true): Promise<Map<string, MappingResult>> {
   const inputs = await loadPair(spec);
   const { report, context } = diffReleases(inputs);
   const path = writeFile(tempDir(), 'mappings.tsv', content ?? tsv([['local_code', 'local_label', 'target_id', 'usage'], ...rows.map(([c, l, t], i) => [c, l, t, String(10 + i)])]));
   const set = await loadMappings(path);
-  const { mappings, scorer } = rescoreMappings(context, report.changes, set, { training: { seed: 5 } });
+  const { mappings, scorer } = rescoreMappings(context, report.changes, set, { training: { seed: 5 }, nearestSearch });
   expect(mappings).toHaveLength(set.mappings.length); // every mapping is accounted for
   expect(scorer.pairs_held_out).toBeGreaterThan(0);
   return new Map(mappings.map((m) => [m.local_code, m]));
@@ -91,6 +91,20 @@ describe('rescoreMappings verdicts', () => {
     expect(r.get('L1')!.verdict).toBe('broken');
     expect(r.get('L1')!.score_new).toBeNull();
     expect(r.get('L1')!.change_ids).toEqual(['retirement:R1>']);
+  });
+
+  it('a target that vanished without a trace still gets suggestions from the nearest-concept search', async () => {
+    // The label shares nothing with the retired concept's own term, so only a search with the
+    // label's text can find B01 (the retirement's own suggestions search with 'Zymotic fever').
+    const spec = { old: BASE + 'R1 disorder: Zymotic fever*', new: BASE };
+    const rows: [string, string, string][] = [['L1', 'Bronchial asthma attack', 'R1']];
+    const m = (await check(spec, rows)).get('L1')!;
+    expect(m.verdict).toBe('broken');
+    expect(m.suggestions[0].concept_id).toBe('B01');
+    expect(m.suggestions[0].reason).toBe('lexical_neighbour');
+    const without = (await check(spec, rows, undefined, false)).get('L1')!;
+    expect(without.verdict).toBe('broken');
+    expect(without.suggestions.map((s) => s.concept_id)).not.toContain('B01');
   });
 
   it('drifted: a synonym the label was built from moved to another concept', async () => {
