@@ -56,6 +56,10 @@ export class Interner {
     }
     return i;
   }
+  /** Index of a value already interned, without interning it. */
+  peek(value: string): number | undefined {
+    return this.index.get(value);
+  }
 }
 
 /** Trim only when the value has white space at either end (the common case has none). */

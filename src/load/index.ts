@@ -8,6 +8,7 @@ import type { Loaded, TableKind } from './types.js';
 
 export { loadRelease, loadMappings, loadHierarchy, loadHistory };
 export * from './types.js';
+export { termTextAt, termIdAt, termTextEquals, termTextComparer, conceptIndexOf, matchConceptIds } from './releaseBytes.js';
 
 export const TABLE_KINDS: readonly TableKind[] = ['release', 'mapping', 'hierarchy', 'history'];
 

@@ -1,0 +1,277 @@
+/**
+ * ReleaseBytes: the raw storage behind a loaded release's term texts, term ids and concept ids.
+ *
+ * A loaded release keeps the UTF-8 bytes it was read from (the file's blocks, plus small side
+ * blocks for values that came through the string path) and, per term, only integers: the block
+ * and the byte ranges of its text and its term_id. Concept ids are hashed into an
+ * open-addressing table over their bytes. No string is created per row while loading; strings
+ * are made when asked for:
+ *  - `termTextAt(r, t)` / `termIdAt(r, t)` decode one value;
+ *  - `termTextEquals(a, t, b, u)` compares two terms' bytes without decoding;
+ *  - `conceptIndexOf(r, id)` and `matchConceptIds(a, b)` find concepts by id through the table;
+ *  - `release.termText`, `release.termId` and `release.conceptIndex` stay plain `string[]` /
+ *    `Map` for every consumer: they are lazy properties, built in full on first access and
+ *    cached (assigning to them replaces the value as for a plain property).
+ * The storage is found through a WeakMap keyed by the release object, so a copy made by spreading
+ * a release (`{ ...r, termText: other }`) never reads the original's bytes by mistake: functions
+ * given a release without storage read its plain properties.
+ */
+import type { Release } from './types.js';
+
+/** FNV-1a (32 bit) over buf[s..e): the concept table's hash, the same in every release. */
+export function hashBytes(buf: Uint8Array, s: number, e: number): number {
+  let h = 0x811c9dc5;
+  for (let i = s; i < e; i++) h = Math.imul(h ^ buf[i], 0x01000193);
+  return h;
+}
+
+/** Are a[as..as+len) and b[bs..bs+len) the same bytes? */
+export function bytesEqual(a: Uint8Array, as: number, b: Uint8Array, bs: number, len: number): boolean {
+  for (let i = 0; i < len; i++) if (a[as + i] !== b[bs + i]) return false;
+  return true;
+}
+
+/** Concept ids as byte ranges plus an open-addressing hash table (slot holds concept + 1, 0 = empty). */
+export interface ConceptTable {
+  blocks: Buffer[];
+  block: Int32Array;
+  start: Int32Array;
+  end: Int32Array;
+  hash: Int32Array;
+  table: Int32Array;
+}
+
+/**
+ * Find the concept whose id is buf[s..e) (hash h). Returns the concept, or `-1 - slot` with the
+ * empty slot where it would be inserted.
+ */
+export function probeConcept(t: ConceptTable, buf: Uint8Array, s: number, e: number, h: number): number {
+  const table = t.table;
+  const mask = table.length - 1;
+  const len = e - s;
+  let p = h & mask;
+  for (;;) {
+    const v = table[p];
+    if (v === 0) return -1 - p;
+    const c = v - 1;
+    if (t.hash[c] === h) {
+      const cs = t.start[c];
+      if (t.end[c] - cs === len && bytesEqual(t.blocks[t.block[c]], cs, buf, s, len)) return c;
+    }
+    p = (p + 1) & mask;
+  }
+}
+
+/** A table of at least twice `count` slots (a power of two) holding concepts 0..count-1. */
+export function rehashConcepts(hash: Int32Array, count: number, minSlots: number): Int32Array {
+  let size = 1 << 10;
+  while (size < minSlots || size < count * 2) size *= 2;
+  const table = new Int32Array(size);
+  const mask = size - 1;
+  for (let c = 0; c < count; c++) {
+    let p = hash[c] & mask;
+    while (table[p] !== 0) p = (p + 1) & mask;
+    table[p] = c + 1;
+  }
+  return table;
+}
+
+export class ReleaseBytes {
+  readonly blocks: Buffer[];
+  /** Per term: block of its text and term_id, and their byte ranges. */
+  termBlock: Int32Array;
+  textStart: Int32Array;
+  textEnd: Int32Array;
+  idStart: Int32Array;
+  idEnd: Int32Array;
+  readonly concepts: ConceptTable;
+  /** The release's concept id list as built; a different array on the release means it was replaced. */
+  readonly conceptIds: string[];
+
+  /** Full arrays once built (or assigned). */
+  textCache: string[] | undefined;
+  idCache: string[] | undefined;
+  indexCache: Map<string, number> | undefined;
+  /** Set when a consumer assigned the property: the bytes no longer describe it. */
+  textReplaced = false;
+  idReplaced = false;
+  indexReplaced = false;
+
+  constructor(parts: {
+    blocks: Buffer[]; termBlock: Int32Array; textStart: Int32Array; textEnd: Int32Array; idStart: Int32Array; idEnd: Int32Array;
+    concepts: ConceptTable; conceptIds: string[];
+  }) {
+    this.blocks = parts.blocks;
+    this.termBlock = parts.termBlock;
+    this.textStart = parts.textStart;
+    this.textEnd = parts.textEnd;
+    this.idStart = parts.idStart;
+    this.idEnd = parts.idEnd;
+    this.concepts = parts.concepts;
+    this.conceptIds = parts.conceptIds;
+  }
+
+  get termCount(): number {
+    return this.termBlock.length;
+  }
+
+  text(t: number): string {
+    if (this.textCache !== undefined) return this.textCache[t];
+    return this.blocks[this.termBlock[t]].toString('utf8', this.textStart[t], this.textEnd[t]);
+  }
+
+  id(t: number): string {
+    if (this.idCache !== undefined) return this.idCache[t];
+    const s = this.idStart[t];
+    const e = this.idEnd[t];
+    return s === e ? '' : this.blocks[this.termBlock[t]].toString('utf8', s, e);
+  }
+
+  allText(): string[] {
+    if (this.textCache === undefined) {
+      const n = this.termCount;
+      const out = new Array<string>(n);
+      for (let t = 0; t < n; t++) out[t] = this.blocks[this.termBlock[t]].toString('utf8', this.textStart[t], this.textEnd[t]);
+      this.textCache = out;
+    }
+    return this.textCache;
+  }
+
+  allIds(): string[] {
+    if (this.idCache === undefined) {
+      const n = this.termCount;
+      const out = new Array<string>(n);
+      for (let t = 0; t < n; t++) out[t] = this.id(t);
+      this.idCache = out;
+    }
+    return this.idCache;
+  }
+
+  /** Same text bytes for term t here and term u of `other`. */
+  sameText(t: number, other: ReleaseBytes, u: number): boolean {
+    const s = this.textStart[t];
+    const len = this.textEnd[t] - s;
+    const os = other.textStart[u];
+    if (other.textEnd[u] - os !== len) return false;
+    return bytesEqual(this.blocks[this.termBlock[t]], s, other.blocks[other.termBlock[u]], os, len);
+  }
+
+  /** Keep the terms for which `keep` is true, in order. */
+  compactTerms(keep: (t: number) => boolean): void {
+    let n = 0;
+    for (let t = 0; t < this.termCount; t++) {
+      if (!keep(t)) continue;
+      this.termBlock[n] = this.termBlock[t];
+      this.textStart[n] = this.textStart[t];
+      this.textEnd[n] = this.textEnd[t];
+      this.idStart[n] = this.idStart[t];
+      this.idEnd[n] = this.idEnd[t];
+      n++;
+    }
+    this.termBlock = this.termBlock.slice(0, n);
+    this.textStart = this.textStart.slice(0, n);
+    this.textEnd = this.textEnd.slice(0, n);
+    this.idStart = this.idStart.slice(0, n);
+    this.idEnd = this.idEnd.slice(0, n);
+    this.textCache = undefined;
+    this.idCache = undefined;
+  }
+
+  /** Concept with this id, or -1 (no Map is built). */
+  conceptOf(id: string): number {
+    const need = id.length * 3;
+    if (scratch.length < need) scratch = Buffer.allocUnsafe(Math.max(need, scratch.length * 2));
+    const len = scratch.write(id, 0, 'utf8');
+    const c = probeConcept(this.concepts, scratch, 0, len, hashBytes(scratch, 0, len));
+    return c < 0 ? -1 : c;
+  }
+}
+
+let scratch = Buffer.allocUnsafe(256);
+
+const storage = new WeakMap<object, ReleaseBytes>();
+
+/** The byte storage of a release loaded from a file, if it has one that still describes it. */
+function bytesOf(r: Release): ReleaseBytes | undefined {
+  return storage.get(r);
+}
+
+function lazyProperty<T>(target: object, key: string, get: () => T, onSet: (value: T) => void): void {
+  Object.defineProperty(target, key, {
+    enumerable: true,
+    configurable: true,
+    get,
+    set(value: T) {
+      Object.defineProperty(target, key, { value, writable: true, enumerable: true, configurable: true });
+      onSet(value);
+    },
+  });
+}
+
+/**
+ * Attach the storage to a release and define `termText`, `termId` and `conceptIndex` on it as
+ * lazy properties (built in full on first access, then cached).
+ */
+export function attachReleaseBytes(r: Omit<Release, 'termText' | 'termId' | 'conceptIndex'>, bytes: ReleaseBytes): Release {
+  storage.set(r, bytes);
+  lazyProperty(r, 'termText', () => bytes.allText(), (v: string[]) => { bytes.textCache = v; bytes.textReplaced = true; });
+  lazyProperty(r, 'termId', () => bytes.allIds(), (v: string[]) => { bytes.idCache = v; bytes.idReplaced = true; });
+  lazyProperty(r, 'conceptIndex', () => (bytes.indexCache ??= new Map(bytes.conceptIds.map((id, i) => [id, i]))), (v: Map<string, number>) => { bytes.indexCache = v; bytes.indexReplaced = true; });
+  return r as Release;
+}
+
+/** Text of term t, decoded alone (the full `termText` array is not built). */
+export function termTextAt(r: Release, t: number): string {
+  const b = bytesOf(r);
+  return b !== undefined ? b.text(t) : r.termText[t];
+}
+
+/** term_id of term t ('' when absent), decoded alone. */
+export function termIdAt(r: Release, t: number): string {
+  const b = bytesOf(r);
+  return b !== undefined ? b.id(t) : r.termId[t];
+}
+
+/**
+ * A comparer of term texts between releases a and b: equal text of a's term t and b's term u.
+ * Compares bytes (length first, no allocation) when both releases keep them, else strings.
+ */
+export function termTextComparer(a: Release, b: Release): (t: number, u: number) => boolean {
+  const ba = bytesOf(a);
+  const bb = bytesOf(b);
+  if (ba !== undefined && bb !== undefined && !ba.textReplaced && !bb.textReplaced) return (t, u) => ba.sameText(t, bb, u);
+  return (t, u) => termTextAt(a, t) === termTextAt(b, u);
+}
+
+/** Same text for term t of a and term u of b. */
+export function termTextEquals(a: Release, t: number, b: Release, u: number): boolean {
+  return termTextComparer(a, b)(t, u);
+}
+
+function tableUsable(r: Release, b: ReleaseBytes | undefined): b is ReleaseBytes {
+  return b !== undefined && !b.indexReplaced && r.conceptIds === b.conceptIds;
+}
+
+/** Index of the concept with this id, or -1; uses the byte table when there is one (no Map built). */
+export function conceptIndexOf(r: Release, id: string): number {
+  const b = bytesOf(r);
+  if (tableUsable(r, b)) return b.conceptOf(id);
+  return r.conceptIndex.get(id) ?? -1;
+}
+
+/** For each concept of a, the concept of b with the same id, or -1. */
+export function matchConceptIds(a: Release, b: Release): Int32Array {
+  const out = new Int32Array(a.conceptCount);
+  const ba = bytesOf(a);
+  const bb = bytesOf(b);
+  if (tableUsable(a, ba) && tableUsable(b, bb)) {
+    const ca = ba.concepts;
+    for (let c = 0; c < a.conceptCount; c++) {
+      const found = probeConcept(bb.concepts, ca.blocks[ca.block[c]], ca.start[c], ca.end[c], ca.hash[c]);
+      out[c] = found < 0 ? -1 : found;
+    }
+    return out;
+  }
+  for (let c = 0; c < a.conceptCount; c++) out[c] = conceptIndexOf(b, a.conceptIds[c]);
+  return out;
+}
