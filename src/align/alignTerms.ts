@@ -2,7 +2,9 @@
  * alignTerms: find the changed frontier of two releases and identify its terms across them.
  *
  * 1. Concepts present in both releases with the same status, category and active terms
- *    (text, type, language) are unchanged and skipped; the rest form the frontier.
+ *    (text, type, language) are unchanged and skipped; the rest form the frontier. Concepts
+ *    are paired by their id bytes and term texts compared as bytes (load/releaseBytes.ts), so
+ *    the texts of unchanged concepts are never decoded to strings.
  * 2. Frontier terms are matched level by level, each level only among the terms still
  *    unmatched: term_id (when both releases carry one), exact text, folded text, lexical key
  *    (see text/normalize.ts). Within a level a term first looks in the concept with its own
@@ -16,6 +18,7 @@
  */
 import type { Release } from '../load/types.js';
 import { ACTIVE } from '../load/types.js';
+import { matchConceptIds, termIdAt, termTextAt, termTextComparer } from '../load/releaseBytes.js';
 import { foldTerm, lexicalKey, type MatchLevel } from '../text/normalize.js';
 import type { Alignment, TermLink } from './types.js';
 
@@ -39,19 +42,25 @@ function langOf(r: Release, t: number): string {
   return i < 0 ? '' : r.languages[i];
 }
 
-/** Same status, category and active term list (as a multiset of text+type+language). */
-function sameConcept(a: Release, ca: number, b: Release, cb: number): boolean {
+/**
+ * Same status, category and active term list (as a multiset of text+type+language). Terms are
+ * compared in file order first, text by its bytes (`sameText`, no string made); only a concept
+ * whose terms differ or come in another order has its texts decoded.
+ */
+function sameConcept(a: Release, ca: number, b: Release, cb: number, sameText: (t: number, u: number) => boolean): boolean {
   if (a.conceptStatus[ca] !== b.conceptStatus[cb]) return false;
   if (categoryOf(a, ca) !== categoryOf(b, cb)) return false;
   const ta = activeTerms(a, ca);
   const tb = activeTerms(b, cb);
   if (ta.length !== tb.length) return false;
-  const key = (r: Release, t: number) => `${r.termTypes[r.termType[t]]}\u0001${langOf(r, t)}\u0001${r.termText[t]}`;
   let inOrder = true;
   for (let i = 0; i < ta.length; i++) {
-    if (a.termText[ta[i]] !== b.termText[tb[i]] || key(a, ta[i]) !== key(b, tb[i])) { inOrder = false; break; }
+    const t = ta[i];
+    const u = tb[i];
+    if (a.termTypes[a.termType[t]] !== b.termTypes[b.termType[u]] || langOf(a, t) !== langOf(b, u) || !sameText(t, u)) { inOrder = false; break; }
   }
   if (inOrder) return true;
+  const key = (r: Release, t: number) => `${r.termTypes[r.termType[t]]}\u0001${langOf(r, t)}\u0001${termTextAt(r, t)}`;
   const ka = ta.map((t) => key(a, t)).sort();
   const kb = tb.map((t) => key(b, t)).sort();
   return ka.every((k, i) => k === kb[i]);
@@ -70,15 +79,17 @@ export function alignTerms(oldR: Release, newR: Release, options: AlignOptions =
   const newFrontier: number[] = [];
   const newInFrontier = new Uint8Array(newR.conceptCount);
   let unchanged = 0;
+  const sameIdOf = matchConceptIds(oldR, newR);
+  const sameText = termTextComparer(oldR, newR);
   for (let c = 0; c < oldR.conceptCount; c++) {
-    const n = newR.conceptIndex.get(oldR.conceptIds[c]);
-    if (n === undefined) {
+    const n = sameIdOf[c];
+    if (n < 0) {
       oldFrontier.push(c);
       continue;
     }
     sameId[c] = n;
     newHasOld[n] = 1;
-    if (sameConcept(oldR, c, newR, n)) unchanged++;
+    if (sameConcept(oldR, c, newR, n, sameText)) unchanged++;
     else {
       oldFrontier.push(c);
       newFrontier.push(n);
@@ -103,6 +114,9 @@ export function alignTerms(oldR: Release, newR: Release, options: AlignOptions =
   for (const c of oldFrontier) if (oldR.conceptStatus[c] === ACTIVE) for (const t of activeTerms(oldR, c)) oldTerms.push(t);
   const newTerms: number[] = [];
   for (const n of newFrontier) for (const t of activeTerms(newR, n)) newTerms.push(t);
+  // Frontier texts, decoded once (unchanged concepts never have theirs decoded).
+  const oldTexts = oldTerms.map((t) => termTextAt(oldR, t));
+  const newTexts = newTerms.map((t) => termTextAt(newR, t));
 
   const link = (o: number, n: number, level: MatchLevel) => {
     linkOfOld[o] = links.length;
@@ -114,9 +128,12 @@ export function alignTerms(oldR: Release, newR: Release, options: AlignOptions =
   // Level term_id: the publisher's own identity of terms.
   if (oldR.hasColumn.term_id && newR.hasColumn.term_id) {
     const byId = new Map<string, number>();
-    for (const t of newTerms) if (newR.termId[t] !== '') byId.set(newR.termId[t], t);
+    for (const t of newTerms) {
+      const id = termIdAt(newR, t);
+      if (id !== '') byId.set(id, t);
+    }
     for (const t of oldTerms) {
-      const id = oldR.termId[t];
+      const id = termIdAt(oldR, t);
       if (id === '') continue;
       const n = byId.get(id);
       // A term kept on a concept that is now inactive is matched last (see the passes below),
@@ -133,19 +150,22 @@ export function alignTerms(oldR: Release, newR: Release, options: AlignOptions =
     const normalized = level === 'folded' || level === 'lexical';
     // Unmatched new terms by key, in file order.
     const byKey = new Map<string, number[]>();
-    for (const t of newTerms) {
+    for (let i = 0; i < newTerms.length; i++) {
+      const t = newTerms[i];
       if (linkOfNew[t] !== -1) continue;
-      const k = keyOf(newR.termText[t]);
+      const k = keyOf(newTexts[i]);
       const list = byKey.get(k);
       if (list) list.push(t);
       else byKey.set(k, [t]);
     }
     // Three passes so that a term's own concept is always offered it first:
     // 0 own concept still active, 1 another active concept, 2 own concept now inactive.
+    const oldKeys: (string | undefined)[] = new Array(oldTerms.length);
     for (let pass = 0; pass < 3; pass++) {
-      for (const t of oldTerms) {
+      for (let i = 0; i < oldTerms.length; i++) {
+        const t = oldTerms[i];
         if (linkOfOld[t] !== -1) continue;
-        const list = byKey.get(keyOf(oldR.termText[t]));
+        const list = byKey.get((oldKeys[i] ??= keyOf(oldTexts[i])));
         if (!list) continue;
         const own = sameId[oldR.termConcept[t]];
         for (const n of list) {

@@ -16,6 +16,7 @@ import { UndirectedGraph } from 'graphology';
 import { connectedComponents } from 'graphology-components';
 import type { Hierarchy, HistoryRow, HistoryTable, Release } from '../load/types.js';
 import { ACTIVE, PREFERRED } from '../load/types.js';
+import { conceptIndexOf, termTextAt } from '../load/releaseBytes.js';
 import { alignTerms, activeTerms } from '../align/alignTerms.js';
 import type { Alignment } from '../align/types.js';
 import { foldTerm, lexicalKey } from '../text/normalize.js';
@@ -160,8 +161,8 @@ export function resolveHistory(history: HistoryTable, newR: Release, id: string,
         const strong = row.relation === 'replaced_by' || row.relation === 'same_as';
         if (strongOnly !== strong) continue;
         rows.push(row);
-        const n = newR.conceptIndex.get(row.newId);
-        if (n !== undefined && isActive(newR, n)) targets.add(row.newId);
+        const n = conceptIndexOf(newR, row.newId);
+        if (n >= 0 && isActive(newR, n)) targets.add(row.newId);
         else if (seen.has(row.newId)) cycle = true;
         else {
           seen.add(row.newId);
@@ -184,10 +185,10 @@ export function buildContext(input: DiffInput): DiffContext {
 
   for (const n of align.newFrontier) {
     const terms = activeTerms(newR, n);
-    const o = oldR.conceptIndex.get(newR.conceptIds[n]);
+    const o = conceptIndexOf(oldR, newR.conceptIds[n]);
     news.set(n, {
       n, id: newR.conceptIds[n], terms, preferred: preferredOf(newR, terms),
-      created: o === undefined || !isActive(oldR, o), active: isActive(newR, n),
+      created: o < 0 || !isActive(oldR, o), active: isActive(newR, n),
       inflows: new Map(), added: [], group: -1,
     });
   }
@@ -217,7 +218,7 @@ export function buildContext(input: DiffInput): DiffContext {
     else if (!isActive(newR, n)) o.fate = 'retired';
     else if ((o.flows.get(n)?.length ?? 0) > 0 || o.terms.length === 0) o.fate = 'continues';
     else {
-      const sim = termSetSimilarity(o.terms.map((t) => oldR.termText[t]), activeTerms(newR, n).map((t) => newR.termText[t]));
+      const sim = termSetSimilarity(o.terms.map((t) => termTextAt(oldR, t)), activeTerms(newR, n).map((t) => termTextAt(newR, t)));
       o.fate = sim < thresholds.reuseSimilarity ? 'reused' : 'continues';
     }
   }
@@ -251,7 +252,7 @@ export function buildContext(input: DiffInput): DiffContext {
     if (o.carriers.length === 0 && input.history) {
       const res = resolveHistory(input.history, newR, o.id, true);
       for (const id of res.targets) {
-        const n = newR.conceptIndex.get(id)!;
+        const n = conceptIndexOf(newR, id);
         const row = res.rows.find((r) => r.newId === id) ?? res.rows[0];
         historyEdges.push({ o: o.c, n, row });
         graph.mergeEdge(`o${o.c}`, `n${n}`);

@@ -7,6 +7,7 @@ import type { Change, ChangeKind, ChangeOf, Successor, TermMove } from './types.
 import type { DiffContext, OldNode } from './context.js';
 import { round, isActive } from './context.js';
 import { activeTerms } from '../align/alignTerms.js';
+import { conceptIndexOf, termTextAt } from '../load/releaseBytes.js';
 
 export interface Detector<K extends ChangeKind = ChangeKind> {
   kind: K;
@@ -25,10 +26,10 @@ export function makeChange<K extends ChangeKind>(kind: K, from: string[], to: st
 /** The preferred term of concept c (first preferred active term, else first term), or ''. */
 export function conceptLabel(r: Release, c: number): string {
   const terms = activeTerms(r, c);
-  for (const t of terms) if (r.termType[t] === 0) return r.termText[t];
-  if (terms.length) return r.termText[terms[0]];
+  for (const t of terms) if (r.termType[t] === 0) return termTextAt(r, t);
+  if (terms.length) return termTextAt(r, terms[0]);
   const s = r.conceptTermStart[c];
-  return s < r.conceptTermStart[c + 1] ? r.termText[r.conceptTerms[s]] : '';
+  return s < r.conceptTermStart[c + 1] ? termTextAt(r, r.conceptTerms[s]) : '';
 }
 
 /** Term moves for old terms of `o` that went to new concept n (or anywhere, when n is -1). */
@@ -38,8 +39,8 @@ export function movesOf(ctx: DiffContext, o: OldNode, only?: number): TermMove[]
     if (only !== undefined && n !== only) continue;
     for (const t of terms) {
       const link = ctx.align.links[ctx.align.linkOfOld[t]];
-      const newText = ctx.new.termText[link.newTerm];
-      const move: TermMove = { term: ctx.old.termText[t], from: o.id, to: ctx.new.conceptIds[n], match: link.level };
+      const newText = termTextAt(ctx.new, link.newTerm);
+      const move: TermMove = { term: termTextAt(ctx.old, t), from: o.id, to: ctx.new.conceptIds[n], match: link.level };
       if (newText !== move.term) move.new_term = newText;
       out.push(move);
     }
@@ -48,8 +49,8 @@ export function movesOf(ctx: DiffContext, o: OldNode, only?: number): TermMove[]
 }
 
 export function statusOf(ctx: DiffContext, id: string): 'active' | 'inactive' | 'absent' {
-  const n = ctx.new.conceptIndex.get(id);
-  if (n === undefined) return 'absent';
+  const n = conceptIndexOf(ctx.new, id);
+  if (n < 0) return 'absent';
   return isActive(ctx.new, n) ? 'active' : 'inactive';
 }
 

@@ -6,6 +6,7 @@
 import type { DiffContext, NewNode, OldNode } from '../context.js';
 import { foldTerm } from '../../text/normalize.js';
 import { PREFERRED } from '../../load/types.js';
+import { termTextAt } from '../../load/releaseBytes.js';
 
 export interface ConceptEdit {
   o: OldNode;
@@ -32,8 +33,8 @@ export function conceptEdits(ctx: DiffContext): ConceptEdit[] {
     const newPreferred = ctx.new.hasColumn.term_type ? typedPreferred(n.terms, ctx.new.termType) : -1;
     let preferredChanged = false;
     if (oldPreferred >= 0 || newPreferred >= 0) {
-      const a = oldPreferred >= 0 ? foldTerm(ctx.old.termText[oldPreferred]) : '';
-      const b = newPreferred >= 0 ? foldTerm(ctx.new.termText[newPreferred]) : '';
+      const a = oldPreferred >= 0 ? foldTerm(termTextAt(ctx.old, oldPreferred)) : '';
+      const b = newPreferred >= 0 ? foldTerm(termTextAt(ctx.new, newPreferred)) : '';
       // Case, punctuation and compatibility forms alone do not change a name.
       preferredChanged = a !== b;
     }

@@ -2,6 +2,7 @@
 import type { Detector } from '../detector.js';
 import { makeChange } from '../detector.js';
 import { isActive } from '../context.js';
+import { conceptIndexOf } from '../../load/releaseBytes.js';
 
 export const hierarchyChange: Detector<'hierarchy_change'> = {
   kind: 'hierarchy_change',
@@ -12,9 +13,9 @@ export const hierarchyChange: Detector<'hierarchy_change'> = {
     const ids = new Set([...oh.parents.keys(), ...nh.parents.keys()]);
     const out = [];
     for (const id of [...ids].sort()) {
-      const c = ctx.old.conceptIndex.get(id);
-      const n = ctx.new.conceptIndex.get(id);
-      if (c === undefined || n === undefined || !isActive(ctx.old, c) || !isActive(ctx.new, n)) continue;
+      const c = conceptIndexOf(ctx.old, id);
+      const n = conceptIndexOf(ctx.new, id);
+      if (c < 0 || n < 0 || !isActive(ctx.old, c) || !isActive(ctx.new, n)) continue;
       if (ctx.olds.get(c)?.fate === 'reused') continue;
       const before = [...new Set(oh.parents.get(id) ?? [])].sort();
       const after = [...new Set(nh.parents.get(id) ?? [])].sort();

@@ -9,6 +9,7 @@ import type { Detector } from '../detector.js';
 import { makeChange } from '../detector.js';
 import { categoryName, termSetSimilarity, round } from '../context.js';
 import { activeTerms } from '../../align/alignTerms.js';
+import { termTextAt } from '../../load/releaseBytes.js';
 
 export const idReuse: Detector<'id_reuse'> = {
   kind: 'id_reuse',
@@ -17,9 +18,9 @@ export const idReuse: Detector<'id_reuse'> = {
     for (const o of ctx.olds.values()) {
       if (o.fate !== 'reused') continue;
       const n = ctx.align.sameId[o.c];
-      const before = o.terms.map((t) => ctx.old.termText[t]);
+      const before = o.terms.map((t) => termTextAt(ctx.old, t));
       const newTerms = activeTerms(ctx.new, n);
-      const after = newTerms.map((t) => ctx.new.termText[t]);
+      const after = newTerms.map((t) => termTextAt(ctx.new, t));
       const similarity = round(termSetSimilarity(before, after));
       const categoryBefore = categoryName(ctx.old, o.c);
       const categoryAfter = categoryName(ctx.new, n);
@@ -28,8 +29,8 @@ export const idReuse: Detector<'id_reuse'> = {
       const contextKept = categoryBefore === categoryAfter && (ph === undefined || ph === nh);
       const wentTo = [...o.flows.keys()].filter((k) => k !== n).map((k) => ctx.new.conceptIds[k]).sort();
       const terms = [
-        ...o.terms.map((t) => ({ term: ctx.old.termText[t], from: o.id, to: null, match: null })),
-        ...newTerms.map((t) => ({ term: ctx.new.termText[t], from: null, to: o.id, match: null })),
+        ...o.terms.map((t) => ({ term: termTextAt(ctx.old, t), from: o.id, to: null, match: null })),
+        ...newTerms.map((t) => ({ term: termTextAt(ctx.new, t), from: null, to: o.id, match: null })),
       ];
       // `to`: the reused identifier, then the concepts that now carry the old meaning.
       const carriers = o.carriers.map((k) => ctx.new.conceptIds[k]).sort();

@@ -3,6 +3,7 @@ import type { Detector } from '../detector.js';
 import { makeChange } from '../detector.js';
 import { conceptEdits } from './conceptEdits.js';
 import type { TermMove } from '../types.js';
+import { termTextAt } from '../../load/releaseBytes.js';
 
 export const preferredTermChange: Detector<'preferred_term_change'> = {
   kind: 'preferred_term_change',
@@ -10,8 +11,8 @@ export const preferredTermChange: Detector<'preferred_term_change'> = {
     return conceptEdits(ctx)
       .filter((e) => e.preferredChanged)
       .map((e) => {
-        const before = e.oldPreferred >= 0 ? ctx.old.termText[e.oldPreferred] : '';
-        const after = e.newPreferred >= 0 ? ctx.new.termText[e.newPreferred] : '';
+        const before = e.oldPreferred >= 0 ? termTextAt(ctx.old, e.oldPreferred) : '';
+        const after = e.newPreferred >= 0 ? termTextAt(ctx.new, e.newPreferred) : '';
         const link = e.oldPreferred >= 0 ? ctx.align.links[ctx.align.linkOfOld[e.oldPreferred]] : undefined;
         const kept = link !== undefined && ctx.new.termConcept[link.newTerm] === e.n.n && link.newTerm !== e.newPreferred;
         const terms: TermMove[] = [];

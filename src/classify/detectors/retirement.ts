@@ -11,13 +11,14 @@ import { conceptLabel, makeChange, movesOf, rankSuccessors } from '../detector.j
 import { flowCells, historyEvidence, isActive, resolveHistory, round, type DiffContext, type OldNode } from '../context.js';
 import type { Successor } from '../types.js';
 import { groupsOf } from './structural.js';
+import { conceptIndexOf, termTextAt } from '../../load/releaseBytes.js';
 
 export function proposeSuccessors(ctx: DiffContext, o: OldNode): Successor[] {
   const named: Successor[] = [];
   const h = ctx.input.history;
   if (h) {
     for (const id of resolveHistory(h, ctx.new, o.id, false).targets) {
-      named.push({ concept_id: id, label: conceptLabel(ctx.new, ctx.new.conceptIndex.get(id)!), score: 0.5, reason: 'history_consider' });
+      named.push({ concept_id: id, label: conceptLabel(ctx.new, conceptIndexOf(ctx.new, id)), score: 0.5, reason: 'history_consider' });
     }
   }
   // Ranked by score alone, a lexical neighbour above 0.5 pushed the publisher's `consider`
@@ -29,9 +30,9 @@ export function proposeSuccessors(ctx: DiffContext, o: OldNode): Successor[] {
     if (!isActive(ctx.new, n)) continue;
     out.push({ concept_id: ctx.new.conceptIds[n], label: conceptLabel(ctx.new, n), score: round(terms.length / Math.max(1, o.terms.length)), reason: 'term_flow' });
   }
-  const texts = o.terms.map((t) => ctx.old.termText[t]);
+  const texts = o.terms.map((t) => termTextAt(ctx.old, t));
   if (texts.length) {
-    const self = ctx.new.conceptIndex.get(o.id) ?? -1;
+    const self = conceptIndexOf(ctx.new, o.id);
     for (const hit of ctx.newIndex().search(texts, ctx.thresholds.maxSuggestions * 2, self)) {
       if (hit.score < ctx.thresholds.neighbourMin) break;
       out.push({ concept_id: ctx.new.conceptIds[hit.concept], label: conceptLabel(ctx.new, hit.concept), score: round(hit.score), reason: 'lexical_neighbour' });
@@ -50,12 +51,12 @@ export const retirement: Detector<'retirement'> = {
       const stray = flowCells(ctx, [o.c], [...o.flows.keys()].filter((n) => n !== ctx.align.sameId[o.c]));
       const strayShare = stray.reduce((a, s) => a + s.share, 0);
       const terms = [
-        ...o.removed.map((t) => ({ term: ctx.old.termText[t], from: o.id, to: null, match: null })),
+        ...o.removed.map((t) => ({ term: termTextAt(ctx.old, t), from: o.id, to: null, match: null })),
         ...movesOf(ctx, o),
       ];
       return makeChange('retirement', [o.id], [], terms, (status === 'inactive' ? 1 : 0.95) * (1 - strayShare / 2), {
         status,
-        preferred: o.preferred >= 0 ? ctx.old.termText[o.preferred] : '',
+        preferred: o.preferred >= 0 ? termTextAt(ctx.old, o.preferred) : '',
         history: historyEvidence(ctx, o.c),
         suggestions: proposeSuccessors(ctx, o),
         stray_terms: stray,

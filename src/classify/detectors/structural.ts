@@ -7,6 +7,7 @@ import type { DiffContext, StructuralGroup } from '../context.js';
 import { flowCells, historyEvidence } from '../context.js';
 import type { StructuralEvidence, TermMove } from '../types.js';
 import { conceptLabel, movesOf, statusOf } from '../detector.js';
+import { conceptIndexOf } from '../../load/releaseBytes.js';
 
 export function structuralEvidence(ctx: DiffContext, g: StructuralGroup): StructuralEvidence {
   const history = g.olds.flatMap((c) => historyEvidence(ctx, c));
@@ -37,7 +38,7 @@ export function structuralEvidence(ctx: DiffContext, g: StructuralGroup): Struct
 /** Moves of the group's old concepts into the group's new concepts. */
 export function groupMoves(ctx: DiffContext, g: StructuralGroup): TermMove[] {
   const into = new Set(g.news);
-  return g.olds.flatMap((c) => movesOf(ctx, ctx.olds.get(c)!).filter((m) => m.to !== null && into.has(ctx.new.conceptIndex.get(m.to)!)));
+  return g.olds.flatMap((c) => movesOf(ctx, ctx.olds.get(c)!).filter((m) => m.to !== null && into.has(conceptIndexOf(ctx.new, m.to))));
 }
 
 /**

@@ -2,6 +2,7 @@
 import type { Detector } from '../detector.js';
 import { makeChange } from '../detector.js';
 import { conceptEdits } from './conceptEdits.js';
+import { termTextAt } from '../../load/releaseBytes.js';
 
 export const synonymAdded: Detector<'synonym_added'> = {
   kind: 'synonym_added',
@@ -10,7 +11,7 @@ export const synonymAdded: Detector<'synonym_added'> = {
     for (const e of conceptEdits(ctx)) {
       const added = e.n.added.filter((t) => !(e.preferredChanged && t === e.newPreferred));
       if (added.length === 0) continue;
-      out.push(makeChange('synonym_added', [e.o.id], [e.n.id], added.map((t) => ({ term: ctx.new.termText[t], from: null, to: e.n.id, match: null })), 1, { count: added.length }));
+      out.push(makeChange('synonym_added', [e.o.id], [e.n.id], added.map((t) => ({ term: termTextAt(ctx.new, t), from: null, to: e.n.id, match: null })), 1, { count: added.length }));
     }
     return out;
   },
