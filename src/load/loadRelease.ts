@@ -89,12 +89,24 @@ export async function loadRelease(path: string, options: LoadReleaseOptions = {}
 
 /** Fill the compressed-sparse-row index concept → terms (terms keep file order). */
 export function buildConceptTerms(r: Release): void {
+  const n = r.termCount;
+  const concept = r.termConcept;
   const start = new Int32Array(r.conceptCount + 1);
-  for (let t = 0; t < r.termCount; t++) start[r.termConcept[t] + 1]++;
+  const list = new Int32Array(n);
+  let grouped = true;
+  for (let t = 0; t < n; t++) {
+    const c = concept[t];
+    start[c + 1]++;
+    if (t > 0 && c < concept[t - 1]) grouped = false;
+  }
   for (let c = 0; c < r.conceptCount; c++) start[c + 1] += start[c];
-  const fill = start.slice(0, r.conceptCount);
-  const list = new Int32Array(r.termCount);
-  for (let t = 0; t < r.termCount; t++) list[fill[r.termConcept[t]]++] = t;
+  if (grouped) {
+    // Rows grouped by concept (the usual layout): the terms are already in concept order.
+    for (let t = 0; t < n; t++) list[t] = t;
+  } else {
+    const fill = start.slice(0, r.conceptCount);
+    for (let t = 0; t < n; t++) list[fill[concept[t]]++] = t;
+  }
   r.conceptTermStart = start;
   r.conceptTerms = list;
 }

@@ -22,7 +22,7 @@ import { quoteValue, type RowLedger } from './ledger.js';
 import { resolveColumns, type ColumnRenames, type ColumnSpec } from './columns.js';
 import { Interner, clean } from './growable.js';
 import { ACTIVE, INACTIVE, PREFERRED, SYNONYM } from './types.js';
-import { hashBytes, bytesEqual, probeConcept, rehashConcepts, type ConceptTable } from './releaseBytes.js';
+import { hashBytes, probeConcept, rehashConcepts, viewOf, viewsEqual, type ConceptTable } from './releaseBytes.js';
 
 export const RELEASE_COLUMNS: readonly ColumnSpec[] = [
   { name: 'concept_id', required: true },
@@ -80,7 +80,7 @@ function padded(buf: Uint8Array, s: number, e: number): boolean {
  * the last one hit tried first. Entries point into the file's blocks; nothing is copied.
  */
 class ByteCodes {
-  private readonly bufs: Uint8Array[] = [];
+  private readonly views: DataView[] = [];
   private readonly starts: number[] = [];
   private readonly lens: number[] = [];
   private readonly codes: number[] = [];
@@ -89,27 +89,32 @@ class ByteCodes {
   private static readonly SIZE = 8;
 
   /** The code of buf[s..e), or -1 when not cached. */
-  get(buf: Uint8Array, s: number, e: number): number {
-    const n = this.codes.length;
+  get(view: DataView, s: number, e: number): number {
     const len = e - s;
-    let j = this.last;
-    for (let k = 0; k < n; k++) {
-      if (this.lens[j] === len && bytesEqual(this.bufs[j], this.starts[j], buf, s, len)) {
+    const j = this.last;
+    // Most rows repeat the previous row's value: one comparison.
+    if (this.lens[j] === len && viewsEqual(this.views[j], this.starts[j], view, s, len)) return this.codes[j];
+    return this.search(view, s, len);
+  }
+
+  private search(view: DataView, s: number, len: number): number {
+    const n = this.codes.length;
+    for (let j = 0; j < n; j++) {
+      if (this.lens[j] === len && viewsEqual(this.views[j], this.starts[j], view, s, len)) {
         this.last = j;
         return this.codes[j];
       }
-      j = j + 1 === n ? 0 : j + 1;
     }
     return -1;
   }
 
-  add(buf: Uint8Array, s: number, e: number, code: number): void {
+  add(view: DataView, s: number, e: number, code: number): void {
     let j = this.codes.length;
     if (j >= ByteCodes.SIZE) {
       j = this.next;
       this.next = (this.next + 1) % ByteCodes.SIZE;
     }
-    this.bufs[j] = buf;
+    this.views[j] = view;
     this.starts[j] = s;
     this.lens[j] = e - s;
     this.codes[j] = code;
@@ -184,7 +189,7 @@ export class ReleaseBuilder {
   private conceptLine = new Int32Array(this.conceptCap);
   private readonly concepts: ConceptTable;
   // The previous row's concept: its id bytes (byte path) or string (string path).
-  private prevBuf: Uint8Array | null = null;
+  private prevView: DataView | null = null;
   private prevStart = 0;
   private prevEnd = 0;
   private prevConcept = -1;
@@ -204,6 +209,11 @@ export class ReleaseBuilder {
   private textEnd = new Int32Array(this.termCap);
   private idStart = new Int32Array(this.termCap);
   private idEnd = new Int32Array(this.termCap);
+
+  // A DataView of the block of the current record.
+  private view: DataView = new DataView(new ArrayBuffer(0));
+  private viewBlock = -1;
+  private viewBuf: Buffer | null = null;
 
   // Side blocks for values that came as strings.
   private side: Buffer | null = null;
@@ -310,7 +320,7 @@ export class ReleaseBuilder {
       this.lastId = id;
       this.lastConcept = c;
     }
-    this.prevBuf = null;
+    this.prevView = null;
     this.conceptValues(c, status, category, line);
 
     const termId = this.tidi >= 0 ? clean(f[this.tidi]) : '';
@@ -329,6 +339,12 @@ export class ReleaseBuilder {
    * record has no byte ≥ 0x80.
    */
   rowBytes(buf: Buffer, blockNo: number, start: Int32Array, end: Int32Array, line: number, ascii: boolean): void {
+    if (blockNo !== this.viewBlock || buf !== this.viewBuf) {
+      this.viewBlock = blockNo;
+      this.viewBuf = buf;
+      this.view = viewOf(buf);
+    }
+    const view = this.view;
     const s0 = start[this.ci];
     const e0 = end[this.ci];
     if (s0 === e0 || padded(buf, s0, e0)) return this.rowFromBytes(buf, start, end, line);
@@ -341,9 +357,9 @@ export class ReleaseBuilder {
       const s = start[this.tti];
       const e = end[this.tti];
       if (s < e) {
-        type = this.typeCodes.get(buf, s, e);
+        type = this.typeCodes.get(view, s, e);
         if (type < 0) {
-          type = this.typeCode(buf, s, e);
+          type = this.typeCode(buf, view, s, e);
           if (type < 0) return this.rowFromBytes(buf, start, end, line);
         }
       }
@@ -353,9 +369,9 @@ export class ReleaseBuilder {
       const s = start[this.si];
       const e = end[this.si];
       if (s < e) {
-        status = this.statusCodes.get(buf, s, e);
+        status = this.statusCodes.get(view, s, e);
         if (status < 0) {
-          status = this.statusCode(buf, s, e);
+          status = this.statusCode(buf, view, s, e);
           if (status < 0) return this.rowFromBytes(buf, start, end, line);
         }
       }
@@ -365,9 +381,9 @@ export class ReleaseBuilder {
       const s = start[this.tsi];
       const e = end[this.tsi];
       if (s < e) {
-        tStatus = this.statusCodes.get(buf, s, e);
+        tStatus = this.statusCodes.get(view, s, e);
         if (tStatus < 0) {
-          tStatus = this.statusCode(buf, s, e);
+          tStatus = this.statusCode(buf, view, s, e);
           if (tStatus < 0) return this.rowFromBytes(buf, start, end, line);
         }
       }
@@ -377,9 +393,9 @@ export class ReleaseBuilder {
       const s = start[this.cati];
       const e = end[this.cati];
       if (s < e) {
-        category = this.categoryCodes.get(buf, s, e);
+        category = this.categoryCodes.get(view, s, e);
         if (category < 0) {
-          category = this.internedCode(this.categories, this.categoryCodes, buf, s, e);
+          category = this.internedCode(this.categories, this.categoryCodes, buf, view, s, e);
           if (category < 0) return this.rowFromBytes(buf, start, end, line);
         }
       }
@@ -389,9 +405,9 @@ export class ReleaseBuilder {
       const s = start[this.li];
       const e = end[this.li];
       if (s < e) {
-        language = this.languageCodes.get(buf, s, e);
+        language = this.languageCodes.get(view, s, e);
         if (language < 0) {
-          language = this.internedCode(this.languages, this.languageCodes, buf, s, e);
+          language = this.internedCode(this.languages, this.languageCodes, buf, view, s, e);
           if (language < 0) return this.rowFromBytes(buf, start, end, line);
         }
       }
@@ -407,15 +423,15 @@ export class ReleaseBuilder {
     // The concept: the previous row's when the id bytes are the same, else through the table.
     let c = this.prevConcept;
     const len = e0 - s0;
-    const prev = this.prevBuf;
-    if (prev === null || this.prevEnd - this.prevStart !== len || !bytesEqual(prev, this.prevStart, buf, s0, len)) {
+    const prev = this.prevView;
+    if (prev === null || this.prevEnd - this.prevStart !== len || !viewsEqual(prev, this.prevStart, view, s0, len)) {
       const h = hashBytes(buf, s0, e0);
       c = probeConcept(this.concepts, buf, s0, e0, h);
       if (c < 0) {
         const id = buf.toString(ascii ? 'latin1' : 'utf8', s0, e0);
         c = this.addConcept(blockNo, s0, e0, h, -1 - c, id, status, category, line);
       }
-      this.prevBuf = buf;
+      this.prevView = view;
       this.prevStart = s0;
       this.prevEnd = e0;
       this.prevConcept = c;
@@ -433,7 +449,7 @@ export class ReleaseBuilder {
   }
 
   /** term_type code of buf[s..e) when known without side effects, else -1. */
-  private typeCode(buf: Buffer, s: number, e: number): number {
+  private typeCode(buf: Buffer, view: DataView, s: number, e: number): number {
     if (padded(buf, s, e)) return -1;
     const t = buf.toString('utf8', s, e);
     let code: number | undefined;
@@ -444,24 +460,24 @@ export class ReleaseBuilder {
       code = low === 'preferred' ? PREFERRED : low === 'synonym' ? SYNONYM : this.termTypes.peek(t);
     }
     if (code === undefined || code > 250) return -1;
-    this.typeCodes.add(buf, s, e, code);
+    this.typeCodes.add(view, s, e, code);
     return code;
   }
 
-  private statusCode(buf: Buffer, s: number, e: number): number {
+  private statusCode(buf: Buffer, view: DataView, s: number, e: number): number {
     if (padded(buf, s, e)) return -1;
     const code = parseStatus(buf.toString('utf8', s, e));
     if (code === undefined) return -1;
-    this.statusCodes.add(buf, s, e, code);
+    this.statusCodes.add(view, s, e, code);
     return code;
   }
 
   /** Index of an already interned value, else -1 (the string path interns it, in file order). */
-  private internedCode(interner: Interner, codes: ByteCodes, buf: Buffer, s: number, e: number): number {
+  private internedCode(interner: Interner, codes: ByteCodes, buf: Buffer, view: DataView, s: number, e: number): number {
     if (padded(buf, s, e)) return -1;
     const code = interner.peek(buf.toString('utf8', s, e));
     if (code === undefined) return -1;
-    codes.add(buf, s, e, code);
+    codes.add(view, s, e, code);
     return code;
   }
 

@@ -1,0 +1,80 @@
+/**
+ * The storage behind a loaded release: lazy termText / termId / conceptIndex, single-value
+ * readers, byte comparison across releases, and copies made by spreading a release.
+ */
+import { describe, expect, it } from 'vitest';
+import { loadRelease, termTextAt, termIdAt, termTextEquals, conceptIndexOf, matchConceptIds, type Release } from '../../src/load/index.js';
+import { tempDir, tsv, writeFile } from '../helpers/files.js';
+
+const H = ['concept_id', 'term', 'term_type', 'term_id'];
+
+async function load(rows: string[][], name = 'r.tsv', reader: 'bytes' | 'strings' = 'bytes'): Promise<Release> {
+  return loadRelease(writeFile(tempDir(), name, tsv([H, ...rows])), { reader });
+}
+
+describe('lazy release properties', () => {
+  it('reads single terms, then the full arrays, with the same values', async () => {
+    const r = await load([['C1', 'Heart', 'preferred', 'T1'], ['C1', 'Heart', 'synonym', 'T9'], ['C1', 'Cœur', 'synonym', ''], ['C2', 'Lung', 'preferred', 'T3']]);
+    // The duplicate (line 3) is dropped; the byte ranges of the terms after it move down with it.
+    expect([0, 1, 2].map((t) => termTextAt(r, t))).toEqual(['Heart', 'Cœur', 'Lung']);
+    expect([0, 1, 2].map((t) => termIdAt(r, t))).toEqual(['T1', '', 'T3']);
+    expect(r.termText).toEqual(['Heart', 'Cœur', 'Lung']);
+    expect(r.termId).toEqual(['T1', '', 'T3']);
+    expect(r.termText).toBe(r.termText); // built once, then cached
+    expect([...r.conceptIndex]).toEqual([['C1', 0], ['C2', 1]]);
+    expect(Object.keys(r)).toEqual(expect.arrayContaining(['termText', 'termId', 'conceptIndex']));
+  });
+
+  it('an assigned array replaces the lazy one for every reader', async () => {
+    const r = await load([['C1', 'Heart', 'preferred', 'T1'], ['C2', 'Lung', 'preferred', 'T2']]);
+    const other = await load([['C1', 'Heart', 'preferred', 'T1'], ['C2', 'Lung', 'preferred', 'T2']]);
+    expect(termTextEquals(r, 1, other, 1)).toBe(true);
+    r.termText = ['Herz', 'Lunge'];
+    r.termId = ['X1', 'X2'];
+    expect(termTextAt(r, 1)).toBe('Lunge');
+    expect(termIdAt(r, 0)).toBe('X1');
+    expect(termTextEquals(r, 1, other, 1)).toBe(false);
+    r.conceptIndex = new Map([['Z', 0]]);
+    expect(conceptIndexOf(r, 'Z')).toBe(0);
+    expect(conceptIndexOf(r, 'C1')).toBe(-1);
+  });
+
+  it('a release copied by spreading reads its own arrays, not the original bytes', async () => {
+    const r = await load([['C1', 'Heart', 'preferred', 'T1'], ['C2', 'Lung', 'preferred', 'T2']]);
+    const copy: Release = { ...r, termText: ['Lung'], termId: ['T2'], termCount: 1, conceptIds: ['C2'], conceptIndex: new Map([['C2', 0]]), conceptCount: 1 };
+    expect(termTextAt(copy, 0)).toBe('Lung');
+    expect(termIdAt(copy, 0)).toBe('T2');
+    expect(conceptIndexOf(copy, 'C2')).toBe(0);
+    expect(termTextEquals(copy, 0, r, 1)).toBe(true);
+    expect(Array.from(matchConceptIds(copy, r))).toEqual([1]);
+    expect(Array.from(matchConceptIds(r, copy))).toEqual([-1, 0]);
+  });
+});
+
+describe('finding concepts and comparing terms across releases', () => {
+  it('pairs concepts by id bytes, with and without byte storage on either side', async () => {
+    const rows = [['B', 'b', '', ''], ['Ä', 'ä', '', ''], ['A', 'a', '', ''], ['C', 'c', '', '']];
+    const a = await load(rows);
+    const b = await load([['C', 'c', '', ''], ['A', 'a', '', ''], ['D', 'd', '', ''], ['Ä', 'ä', '', '']]);
+    expect(Array.from(matchConceptIds(a, b))).toEqual([-1, 3, 1, 0]);
+    const plain: Release = { ...b };
+    expect(Array.from(matchConceptIds(a, plain))).toEqual([-1, 3, 1, 0]);
+    expect(conceptIndexOf(a, 'Ä')).toBe(1);
+    expect(conceptIndexOf(a, 'A\u0308')).toBe(-1); // another spelling of Ä (combining diaeresis) is another id
+    expect(conceptIndexOf(a, '')).toBe(-1);
+    expect(termTextEquals(a, 1, b, 3)).toBe(true);
+    expect(termTextEquals(a, 1, plain, 3)).toBe(true);
+    expect(termTextEquals(a, 0, b, 0)).toBe(false);
+  });
+
+  it('finds every concept of a large release through the table (growth and rehashing)', async () => {
+    const rows: string[][] = [];
+    for (let k = 0; k < 5000; k++) rows.push([`ID${(k * 7919) % 5000}`, `t${k}`, '', '']);
+    const r = await load(rows);
+    expect(r.conceptCount).toBe(5000);
+    for (let c = 0; c < r.conceptCount; c += 97) expect(conceptIndexOf(r, r.conceptIds[c])).toBe(c);
+    expect(conceptIndexOf(r, 'ID5000')).toBe(-1);
+    const s = await load(rows, 'r.tsv', 'strings');
+    expect(Array.from(matchConceptIds(r, s))).toEqual(Array.from({ length: 5000 }, (_, c) => c));
+  });
+});
