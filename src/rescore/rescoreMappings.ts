@@ -22,6 +22,8 @@
 import type { DiffContext } from '../classify/context.js';
 import { categoryName, isActive, resolveHistory } from '../classify/context.js';
 import { conceptLabel } from '../classify/detector.js';
+import { foldTerm } from '../text/normalize.js';
+import { trigramDice } from '../text/similarity.js';
 import type { Change } from '../classify/types.js';
 import type { Mapping, MappingSet, Release } from '../load/types.js';
 import { impactOf } from '../rank/rankByImpact.js';
@@ -93,6 +95,8 @@ interface Candidate {
 }
 
 const round3 = (x: number) => Math.round(x * 1000) / 1000;
+/** Score margin within which a concept holding the label's own wording is ranked first. */
+const TIE_MARGIN = 0.05;
 
 /**
  * How often a successor in this diff has another category than the concept it succeeds: over
@@ -254,14 +258,27 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     const addSearch = () => {
       for (const n of search(labelText)) add(n, 'lexical_neighbour');
     };
+    /**
+     * Candidates best first. Near ties (within TIE_MARGIN) go to a concept holding a term that
+     * folds to the label itself: the scorer's probability saturates near 1 for close variants,
+     * where the exact wording is the better evidence.
+     */
     const ranked = (): Candidate[] => {
       for (const cand of candidates.values()) if (cand.score < 0) cand.score = scoreNew(label, cand.n, targetCtx);
-      return [...candidates.values()].sort((a, b) => b.score - a.score || (newR.conceptIds[a.n] < newR.conceptIds[b.n] ? -1 : 1));
+      const key = (c: Candidate) => c.score + (holdsLabel(c.n) ? TIE_MARGIN : 0);
+      return [...candidates.values()].sort((a, b) => key(b) - key(a) || b.score - a.score || (newR.conceptIds[a.n] < newR.conceptIds[b.n] ? -1 : 1));
+    };
+    const holdsLabel = (n: number) => {
+      const s = newR.conceptTermStart[n];
+      const e = newR.conceptTermStart[n + 1];
+      for (let k = s; k < e; k++) if (foldTerm(newR.termText[newR.conceptTerms[k]]) === label.folded) return true;
+      return false;
     };
     const describe = (c: Candidate) => `${newR.conceptIds[c.n]} ${quote(newLabel(c.n))} (${round3(c.score)})`;
-    const finish = (verdict: Verdict, scoreOld: number | null, scoreNew: number | null, keep: 'all' | 'target' | 'none' = 'all'): MappingResult => {
+    const finish = (verdict: Verdict, scoreOld: number | null, scoreNew: number | null, keep: 'all' | 'target' | 'none' = 'all', lead = -1): MappingResult => {
       let list = keep === 'none' ? [] : ranked();
       if (keep === 'target') list = list.filter((c) => c.reason === 'current_target');
+      if (lead >= 0) list = [...list.filter((c) => c.n === lead), ...list.filter((c) => c.n !== lead)];
       const suggestions: MappingSuggestion[] = list.slice(0, th.maxSuggestions).map((c) => ({
         concept_id: newR.conceptIds[c.n], label: newLabel(c.n), score: round3(c.score), reason: c.reason,
       }));
@@ -389,11 +406,12 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
         const fits = surv.score >= th.redirectMin || (surv.score >= th.credibleMin && surv.score >= scoreOld - th.driftDrop);
         if (fits && !other) {
           reasons.push(`The label matches ${newR.conceptIds[survivor]} well: rewrite the mapping to it.`);
-          return finish('redirect', scoreOld, sNewTarget);
+          return finish('redirect', scoreOld, sNewTarget, 'all', survivor);
         }
         if (other) reasons.push(`Another candidate scores close: ${describe(other)}.`);
         if (!fits) reasons.push(`The label scores low against ${newR.conceptIds[survivor]}.`);
-        return finish('ambiguous', scoreOld, sNewTarget);
+        // The concept the release itself names as successor is listed first, even when it scores low.
+        return finish('ambiguous', scoreOld, sNewTarget, 'all', survivor);
       }
       for (const n of news) add(n, group!.basis === 'history' ? 'history' : 'term_flow');
       flowTargets();
@@ -422,6 +440,14 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
       const best = ranked()[0];
       if (best) reasons.push(`Best candidate: ${describe(best)}.`);
       return finish('ambiguous', scoreOld, sNew);
+    }
+    // The label matched best a term that moved to another concept: it named what that concept means.
+    const home = movedHome(cOld, n, label.folded);
+    if (home >= 0) {
+      add(home, 'term_flow');
+      const moved = candidates.get(home)!;
+      reasons.unshift(`The label matches best the term ${quote(movedTermText)}, which moved from ${id} to ${describe({ ...moved, score: moved.score < 0 ? scoreNew(label, home, targetCtx) : moved.score })}.`);
+      return finish('drifted', scoreOld, sNew, 'all', home);
     }
     let list = ranked();
     // Fell: by more than driftDrop, and to below weakMatch (no longer more likely than not).
@@ -452,6 +478,32 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     }
     reasons.unshift(`The target's terms changed, but the label still matches it (${round3(sLexNew)}).`);
     return finish('ok', scoreOld, sNew, 'none');
+  }
+
+  let movedTermText = '';
+  /**
+   * The active new concept (other than `n`) that received the old target's term the label matches
+   * best (character 3-gram Dice of the folded forms, strictly better than every term that stayed),
+   * or -1. Sets movedTermText.
+   */
+  function movedHome(cOld: number, n: number, foldedLabel: string): number {
+    const o = ctx.olds.get(cOld);
+    if (!o || o.terms.length < 2) return -1;
+    let bestT = -1;
+    let bestS = -1;
+    let second = -1;
+    for (const t of o.terms) {
+      const sim = trigramDice(foldedLabel, foldTerm(oldR.termText[t]));
+      if (sim > bestS) { second = bestS; bestS = sim; bestT = t; }
+      else if (sim > second) second = sim;
+    }
+    if (bestT < 0 || bestS <= second) return -1;
+    const li = ctx.align.linkOfOld[bestT];
+    if (li < 0) return -1;
+    const home = newR.termConcept[ctx.align.links[li].newTerm];
+    if (home === n || !isActive(newR, home)) return -1;
+    movedTermText = oldR.termText[bestT];
+    return home;
   }
 
   /** A sentence when the parents of `id` differ between the two hierarchies, else ''. */
