@@ -16,6 +16,7 @@ import { resolveColumns, type ColumnRenames, type ColumnSpec } from './columns.j
 import { clean } from './growable.js';
 import { InputError } from '../errors.js';
 import type { Mapping, MappingRelation, MappingSet } from './types.js';
+import { readConceptMap } from '../exchange/fhirConceptMap.js';
 
 export const MAPPING_COLUMNS: readonly ColumnSpec[] = [
   { name: 'local_code', required: true },
@@ -94,6 +95,8 @@ export function parseMetadataBlock(path: string, lines: string[]): Record<string
 }
 
 export async function loadMappings(path: string, options: LoadMappingsOptions = {}): Promise<MappingSet> {
+  // A .json file is a FHIR ConceptMap (R4; exchange/fhirConceptMap.ts).
+  if (/\.json$/i.test(path)) return readConceptMap(path);
   const ledger = new RowLedger(path);
   const mappings: Mapping[] = [];
   let header: string[] = [];
