@@ -17,7 +17,7 @@ export const HIERARCHY_COLUMNS = [
 export async function loadHierarchy(path: string, options: { columns?: ColumnRenames } = {}): Promise<Hierarchy> {
   const ledger = new RowLedger(path);
   const parents = new Map<string, string[]>();
-  const firstLine = new Map<string, number>();
+  const firstLines = new Map<string, number[]>();
   let ci = -1;
   let pi = -1;
   let edgeCount = 0;
@@ -33,13 +33,18 @@ export async function loadHierarchy(path: string, options: { columns?: ColumnRen
       if (child === '') return void ledger.reject(line, ci + 1, 'empty_required', 'concept_id is empty', 'give the child concept');
       if (parent === '') return void ledger.reject(line, pi + 1, 'empty_required', `parent_id is empty for ${quoteValue(child)}`, 'give the parent concept, or drop the row for a top concept');
       if (child === parent) return void ledger.reject(line, pi + 1, 'bad_value', `${quoteValue(child)} is given as its own parent`, 'remove the self-loop');
-      const key = `${child}\u0001${parent}`;
-      const seen = firstLine.get(key);
-      if (seen !== undefined) return void ledger.reject(line, 1, 'duplicate_row', `duplicate of line ${seen}: ${quoteValue(child)} → ${quoteValue(parent)}`, 'remove the duplicate row');
-      firstLine.set(key, line);
+      // A child has few parents: a duplicate is found in its own short list, no key per edge.
       const list = parents.get(child);
-      if (list) list.push(parent);
-      else parents.set(child, [parent]);
+      const lines = firstLines.get(child);
+      if (list && lines) {
+        const at = list.indexOf(parent);
+        if (at !== -1) return void ledger.reject(line, 1, 'duplicate_row', `duplicate of line ${lines[at]}: ${quoteValue(child)} → ${quoteValue(parent)}`, 'remove the duplicate row');
+        list.push(parent);
+        lines.push(line);
+      } else {
+        parents.set(child, [parent]);
+        firstLines.set(child, [line]);
+      }
       edgeCount++;
     },
   });

@@ -12,13 +12,19 @@
  * measured in docs/BENCHMARKS.md.)
  *
  * Scores are IDF-weighted Dice overlaps of word sets (0..1); the best term of each concept counts.
- * Words on more than `maxPosting` terms are too common to rank by: a query of such words only is
- * ranked by its rarest word. Built lazily, once per release, and only when something needs it.
+ * Words on more than `maxPosting` terms are too common to generate candidates; candidates found by
+ * the rarer words are then scored on every query word through a forward index (term → words). A
+ * query of common words only is searched by its rarest word. Built lazily, once per release, and only when something needs it.
  */
 import type { Release } from '../load/types.js';
 import { ACTIVE } from '../load/types.js';
 import { STOP_WORDS, foldTerm, stemToken } from '../text/normalize.js';
 import { GrowableInt32 } from '../load/growable.js';
+
+/** Postings scanned per generating word at most (a bound on the work of one query). */
+const CANDIDATE_SCAN_MAX = 200_000;
+/** Candidates per query text scored on all its words. */
+const CANDIDATES_FULL = 500;
 
 export interface IndexHit {
   concept: number;
@@ -29,7 +35,7 @@ export interface IndexHit {
 }
 
 export interface ConceptIndexOptions {
-  /** Words with more postings than this are skipped when the query has rarer words. */
+  /** Words on more terms than this do not generate candidates (default: 0.5 % of the active terms, at least 2,000). */
   maxPosting?: number;
   /** Lowest trigram-Dice for a vocabulary word to stand in for a query word. */
   fuzzyMin?: number;
@@ -69,11 +75,15 @@ export class ConceptIndex {
   /** trigram → vocabulary words (for fuzzy expansion), built on first need */
   private gramIndex: Map<string, number[]> | null = null;
   private readonly scratch: Float64Array;
-  private readonly opts: Required<ConceptIndexOptions>;
+  private readonly termStart: Int32Array;
+  private readonly termWords: Int32Array;
+  private readonly maxPosting: number;
+  private readonly fuzzyCache = new Map<string, { w: number; weight: number }[]>();
+  private readonly opts: Required<Omit<ConceptIndexOptions, 'maxPosting'>>;
 
   constructor(release: Release, options: ConceptIndexOptions = {}) {
     this.release = release;
-    this.opts = { maxPosting: options.maxPosting ?? 50_000, fuzzyMin: options.fuzzyMin ?? 0.6, fuzzyMax: options.fuzzyMax ?? 3 };
+    this.opts = { fuzzyMin: options.fuzzyMin ?? 0.6, fuzzyMax: options.fuzzyMax ?? 3 };
     // Pass 1: words of every active term, as (word, term) pairs; a folded-token cache spares
     // stemming the same token millions of times.
     const tokenWord = new Map<string, number>();
@@ -117,6 +127,16 @@ export class ConceptIndex {
     for (let w = 0; w < nWords; w++) this.idfs[w] = Math.log((active + 1) / (start[w + 1] - start[w] + 1)) + 1;
     this.termNorm = new Float64Array(release.termCount);
     for (let k = 0; k < pairs; k++) this.termNorm[pairTerm[k]] += this.idfs[pairWord[k]];
+    // Forward index term → words, to score candidates on common words without scanning their postings.
+    const tStart = new Int32Array(release.termCount + 1);
+    for (let k = 0; k < pairs; k++) tStart[pairTerm[k] + 1]++;
+    for (let t = 0; t < release.termCount; t++) tStart[t + 1] += tStart[t];
+    const tFill = tStart.slice(0, release.termCount);
+    const tWords = new Int32Array(pairs);
+    for (let k = 0; k < pairs; k++) tWords[tFill[pairTerm[k]]++] = pairWord[k];
+    this.termStart = tStart;
+    this.termWords = tWords;
+    this.maxPosting = options.maxPosting ?? Math.max(2000, Math.ceil(active * 0.005));
     this.scratch = new Float64Array(release.termCount);
   }
 
@@ -133,6 +153,15 @@ export class ConceptIndex {
   /** Vocabulary words within `fuzzyMin` trigram-Dice of `word`, best first (not the word itself). */
   private fuzzy(word: string): { w: number; weight: number }[] {
     if (word.length < 4) return [];
+    const cached = this.fuzzyCache.get(word);
+    if (cached) return cached;
+    const found = this.fuzzyUncached(word);
+    if (this.fuzzyCache.size > 100_000) this.fuzzyCache.clear();
+    this.fuzzyCache.set(word, found);
+    return found;
+  }
+
+  private fuzzyUncached(word: string): { w: number; weight: number }[] {
     if (!this.gramIndex) {
       this.gramIndex = new Map();
       for (let w = 0; w < this.words.length; w++) {
@@ -177,23 +206,37 @@ export class ConceptIndex {
         }
       }
       const df = (q: { w: number }) => this.start[q.w + 1] - this.start[q.w];
-      const rare = query.filter((q) => df(q) <= this.opts.maxPosting);
-      // A query of common words only is ranked by its rarest word alone.
-      const used = rare.length > 0 || query.length === 0 ? rare : [query.reduce((a, b) => (df(b) < df(a) ? b : a))];
+      // Candidates come from the rarer words; a query of common words only uses its rarest word.
+      const rare = query.filter((q) => df(q) <= this.maxPosting);
+      const generators = rare.length > 0 || query.length === 0 ? rare : [query.reduce((a, b) => (df(b) < df(a) ? b : a))];
       const touched: number[] = [];
-      for (const { w, weight } of used) {
+      for (const { w, weight } of generators) {
         const gain = this.idfs[w] * weight;
-        for (let k = this.start[w]; k < this.start[w + 1]; k++) {
+        const end = Math.min(this.start[w + 1], this.start[w] + CANDIDATE_SCAN_MAX);
+        for (let k = this.start[w]; k < end; k++) {
           const t = this.terms[k];
           if (acc[t] === 0) touched.push(t);
           acc[t] += gain;
         }
       }
-      for (const t of touched) {
+      // Keep the best partial scores, then score them on every query word (forward index).
+      const partial = touched.map((t) => ({ t, a: acc[t] }));
+      for (const t of touched) acc[t] = 0;
+      if (partial.length > CANDIDATES_FULL) {
+        partial.sort((x, y) => y.a - x.a || x.t - y.t);
+        partial.length = CANDIDATES_FULL;
+      }
+      const weightOf = new Map<number, number>();
+      for (const q of query) weightOf.set(q.w, Math.max(weightOf.get(q.w) ?? 0, q.weight));
+      for (const { t } of partial) {
+        let overlap = 0;
+        for (let k = this.termStart[t]; k < this.termStart[t + 1]; k++) {
+          const wt = weightOf.get(this.termWords[k]);
+          if (wt !== undefined) overlap += this.idfs[this.termWords[k]] * wt;
+        }
         const c = this.release.termConcept[t];
-        const score = Math.min(1, (2 * acc[t]) / (qNorm + this.termNorm[t]));
-        acc[t] = 0;
         if (c === skipConcept) continue;
+        const score = Math.min(1, (2 * overlap) / (qNorm + this.termNorm[t]));
         const had = best.get(c);
         if (!had || score > had.score || (score === had.score && t < had.term)) best.set(c, { concept: c, term: t, score });
       }
