@@ -18,6 +18,9 @@ import type { Thresholds } from './classify/thresholds.js';
 import type { CheckReport, DiffReport, InputInfo } from './report/types.js';
 import { CAUTION } from './report/caution.js';
 import { NAME, VERSION } from './version.js';
+import { StateStore, runFromReport, type DecisionRecord } from './state/stateStore.js';
+import { settleMappings } from './state/settle.js';
+import { buildHistory, reportHistory } from './state/history.js';
 
 export interface DiffOptions {
   old: string;
@@ -105,13 +108,19 @@ export interface CheckOptions extends DiffOptions {
   /** Exit-1 level for schedulers; recorded in the report. */
   failOn?: FailLevel;
   rescore?: RescoreOptions;
+  /**
+   * State folder (docs/STATE.md): decisions recorded there settle mappings, the run is recorded
+   * there, and the report gets the recorded history. Nothing is read or written without it.
+   */
+  state?: string;
 }
 
 /** Rescore already-loaded inputs: the library entry point of `check` that does no I/O. */
-export function checkReleases(inputs: DiffInputs, mappings: MappingSet, options: { thresholds?: Partial<Thresholds>; now?: string; failOn?: FailLevel; rescore?: RescoreOptions } = {}): { report: CheckReport; context: DiffContext } {
+export function checkReleases(inputs: DiffInputs, mappings: MappingSet, options: { thresholds?: Partial<Thresholds>; now?: string; failOn?: FailLevel; rescore?: RescoreOptions; decisions?: readonly DecisionRecord[] } = {}): { report: CheckReport; context: DiffContext } {
   const { report: diff, context } = diffReleases(inputs, options);
   const rescored = rescoreMappings(context, diff.changes, mappings, options.rescore);
   const ranked = rankByImpact(rescored.mappings);
+  if (options.decisions?.length) settleMappings(ranked, options.decisions, inputs.new.sha256);
   const grouped = groupByChange(ranked, diff.changes);
   const verdictSummary = Object.fromEntries(VERDICTS.map((v) => [v, 0])) as Record<Verdict, number>;
   for (const m of ranked) verdictSummary[m.verdict]++;
@@ -127,7 +136,8 @@ export function checkReleases(inputs: DiffInputs, mappings: MappingSet, options:
     changes_without_mappings: grouped.changes_without_mappings,
   };
   if (options.failOn) {
-    const n = countReaching(ranked.map((m) => m.verdict), options.failOn);
+    // Settled mappings were decided by a reviewer; they do not fail a scheduled run again.
+    const n = countReaching(ranked.filter((m) => !m.settled).map((m) => m.verdict), options.failOn);
     report.fail_on = { level: options.failOn, reached: n > 0, mappings: n };
   }
   if (options.now) {
@@ -141,6 +151,14 @@ export function checkReleases(inputs: DiffInputs, mappings: MappingSet, options:
 /** Load, diff and re-score. */
 export async function runCheck(options: CheckOptions): Promise<{ report: CheckReport; context: DiffContext; inputs: DiffInputs; mappings: MappingSet }> {
   const [inputs, mappings] = await Promise.all([loadDiffInputs(options), loadMappings(options.mappings, {})]);
-  const { report, context } = checkReleases(inputs, mappings, options);
+  const store = options.state !== undefined ? StateStore.open(options.state) : undefined;
+  const { report, context } = checkReleases(inputs, mappings, { ...options, decisions: store?.decisions() });
+  if (store) {
+    store.recordRun(runFromReport(report));
+    const generatedAt = report.generated_at;
+    delete report.generated_at;
+    report.history = reportHistory(buildHistory(store.loadRuns()));
+    if (generatedAt) report.generated_at = generatedAt;
+  }
   return { report, context, inputs, mappings };
 }

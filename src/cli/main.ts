@@ -10,6 +10,8 @@ import { EXIT } from './exitCode.js';
 import { runValidate } from './validate.js';
 import { runCheckCommand, runDemoCommand, runDiffCommand, type Io } from './reportCommands.js';
 import { runImport } from './importCommand.js';
+import { runApplyCommand } from './applyCommand.js';
+import { runHistoryCommand } from './historyCommand.js';
 import { FAIL_LEVELS } from '../rank/failOn.js';
 import { VERSION } from '../version.js';
 
@@ -72,7 +74,9 @@ export function buildProgram(): Command {
       .requiredOption('--mappings <file>', 'the mapping set: CSV/TSV (local_code,local_label,target_id,…), SSSOM TSV, or FHIR ConceptMap JSON')
       .option('--format <format>', 'text | json | md | csv | html', 'text')
       .option('--fail-on <level>', `exit 1 when a mapping has this verdict or a more severe one: ${FAIL_LEVELS.join(' > ')}`)
-      .option('--summary-json <file>', 'also write a short machine-readable summary'),
+      .option('--summary-json <file>', 'also write a short machine-readable summary')
+      .option('--state <dir>', 'record the run and read earlier decisions in this folder (default .termdrift)')
+      .option('--no-state', 'record nothing and read no earlier decisions'),
   ).action(action((o: string, n: string, opts) => runCheckCommand(o, n, opts, io)));
 
   program
@@ -83,7 +87,38 @@ export function buildProgram(): Command {
     .option('--limit <n>', 'text report: show at most N rows per list')
     .option('--verdict <list>', 'text report: show only these verdicts')
     .option('--no-color', 'no colour')
+    .option('--state <dir>', 'record the run in this folder (the demo records nothing otherwise)')
     .action(action((opts) => runDemoCommand(opts, io)));
+
+  program
+    .command('apply')
+    .description("apply a reviewer's decisions (a filled-in check --format csv worklist) to a mapping set")
+    .argument('<worklist>', 'the worklist CSV with decision (accept | keep | remap | retire), new_target, reviewer, note filled in')
+    .requiredOption('--mappings <file>', 'the mapping set the worklist was made from')
+    .requiredOption('--out <file>', 'where to write the updated mapping set (- for standard output)')
+    .option('--out-format <format>', 'csv | tsv | sssom | fhir (default: by the name of --out: .json FHIR ConceptMap, .sssom.tsv SSSOM, .csv CSV; else the input\'s format)')
+    .option('--audit <file>', 'append one row per decision to this CSV audit log')
+    .option('--release-file <file>', 'the new release (default: the one a recorded check run read, by the worklist\'s new_sha256)')
+    .option('--release <label>', "release label for the audit log, the state and the output (default: the worklist's new_release)")
+    .option('--now <time>', 'time of the decisions for the audit log (ISO; "now" reads the clock; default: the worklist\'s decided_at, else none)')
+    .option('--state <dir>', 'record the decisions in this folder (default: .termdrift when it exists)')
+    .option('--no-state', 'record no decisions')
+    .option('--set-id <uri>', 'SSSOM mapping_set_id / FHIR ConceptMap.url when the input has none')
+    .option('--license <uri>', 'SSSOM license when the input has none')
+    .option('--set-version <version>', 'SSSOM mapping_set_version / FHIR ConceptMap.version (default: the release label)')
+    .option('--local-prefix <prefix=iri>', 'SSSOM: CURIE prefix for local codes that have none')
+    .option('--target-prefix <prefix=iri>', 'SSSOM: CURIE prefix for targets that have none')
+    .option('--local-system <uri>', 'FHIR: group.source, the code system of the local codes')
+    .option('--target-system <uri>', 'FHIR: group.target, the code system of the targets')
+    .action(action((worklist: string, opts) => runApplyCommand(worklist, opts, { out, err: (s) => process.stderr.write(s.endsWith('\n') ? s : s + '\n') })));
+
+  program
+    .command('history')
+    .description('score trends of every mapping across the recorded runs, and the mappings whose score keeps falling')
+    .option('--state <dir>', 'the state folder', '.termdrift')
+    .option('--code <code>', 'show one local code, release by release')
+    .option('--format <format>', 'text | json', 'text')
+    .action(action((opts) => runHistoryCommand(opts, out)));
 
   program
     .command('import')

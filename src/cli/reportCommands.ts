@@ -13,6 +13,7 @@ import { UsageError } from '../errors.js';
 import { exitCodeFor, type ExitCode } from './exitCode.js';
 import { parseFailOn } from '../rank/failOn.js';
 import { writeAtomic } from '../state/atomicWrite.js';
+import { DEFAULT_STATE_DIR } from '../state/stateStore.js';
 
 export interface ReportFlags {
   oldHierarchy?: string;
@@ -30,6 +31,8 @@ export interface ReportFlags {
   mappings?: string;
   failOn?: string;
   summaryJson?: string;
+  /** --state DIR (a string), --no-state (false), or neither (undefined: the command's default). */
+  state?: string | false;
 }
 
 const DIFF_FORMATS: RenderFormat[] = ['text', 'json', 'md'];
@@ -41,7 +44,7 @@ function parseFormat(value: string | undefined, allowed: RenderFormat[]): Render
   return f;
 }
 
-function parseNow(value: string | undefined): string | undefined {
+export function parseNow(value: string | undefined): string | undefined {
   if (value === undefined) return undefined;
   const t = Date.parse(value);
   if (Number.isNaN(t)) throw new UsageError(`--now must be an ISO date or time; got "${value}"`, 'e.g. --now 2026-12-01T09:00:00Z');
@@ -103,7 +106,9 @@ export async function runCheckCommand(oldPath: string, newPath: string, f: Repor
   if (!f.mappings) throw new UsageError('--mappings FILE is required', 'give the mapping set to re-score (CSV, TSV, SSSOM TSV or FHIR ConceptMap JSON)');
   const format = parseFormat(f.format, CHECK_FORMATS);
   const failOn = parseFailOn(f.failOn);
-  const options: CheckOptions = { ...diffOptions(oldPath, newPath, f), mappings: f.mappings, failOn };
+  // check keeps its history in .termdrift/ unless told otherwise (docs/STATE.md).
+  const state = f.state === false ? undefined : (f.state ?? DEFAULT_STATE_DIR);
+  const options: CheckOptions = { ...diffOptions(oldPath, newPath, f), mappings: f.mappings, failOn, state };
   const { report } = await runCheck(options);
   emit(renderReport(format, report, { color: useColor(f, io), limit: parseLimit(f.limit), verdicts: parseVerdicts(f.verdict) }), f, io);
   if (f.summaryJson) {
@@ -113,6 +118,7 @@ export async function runCheckCommand(oldPath: string, newPath: string, f: Repor
       verdicts: report.verdict_summary,
       changes: report.summary,
       rejected_rows: report.rejected_rows.length,
+      settled: report.mappings.filter((m) => m.settled).length,
       fail_on: report.fail_on ?? null,
     };
     writeAtomic(f.summaryJson, JSON.stringify(summary, null, 2) + '\n');
@@ -135,5 +141,7 @@ export function demoPaths() {
 
 export async function runDemoCommand(f: ReportFlags, io: Io): Promise<ExitCode> {
   const p = demoPaths();
-  return runCheckCommand(p.old, p.new, { ...f, oldHierarchy: p.oldHierarchy, newHierarchy: p.newHierarchy, history: p.history, mappings: p.mappings }, io);
+  // The demo writes no state unless asked with --state DIR.
+  const state = typeof f.state === 'string' ? f.state : false;
+  return runCheckCommand(p.old, p.new, { ...f, oldHierarchy: p.oldHierarchy, newHierarchy: p.newHierarchy, history: p.history, mappings: p.mappings, state }, io);
 }

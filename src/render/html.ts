@@ -8,7 +8,8 @@
  * under the change that caused them, each row a <details> that opens on its evidence, with a
  * filter box and verdict toggles (small inline script; without it every row simply shows); for
  * each split, merge and reorganization an SVG of the terms flowing from old concepts to new ones;
- * then inputs, row accounting, parameters, rejected rows and warnings.
+ * with a state folder, the recorded history (needing action per run, the scores of the mappings
+ * that keep falling); then inputs, row accounting, parameters, rejected rows and warnings.
  *
  * Every string from the input goes through `esc` (& < > " ' and control characters), in text
  * and in attributes alike; attributes are always double-quoted.
@@ -17,7 +18,8 @@ import { createHash } from 'node:crypto';
 import { CHANGE_KIND_INFO } from '../classify/kinds.js';
 import type { Change, FlowCell } from '../classify/types.js';
 import type { MappingResult, Verdict } from '../rescore/types.js';
-import type { Report } from '../report/types.js';
+import type { CheckReport, Report } from '../report/types.js';
+import type { ReportHistory } from '../state/history.js';
 import {
   buildView,
   changeSubject,
@@ -355,7 +357,7 @@ function actionSection(view: ReportView): string {
   const which = view.filtered ? `Only the verdicts ${view.verdicts.map((v) => VERDICT_INFO[v].title).join(', ')} are listed.` : 'Every verdict but “No action” is listed.';
   out.push(`<p class="small">Under the change that caused them, the group with the largest total impact first, mappings that no change touches last; within a group by impact, then local code. ${esc(which)} Open a row for its evidence.</p>`);
   if (!view.actions.length) {
-    out.push('<p>None.</p></section>');
+    out.push(`<p>None.</p>${settledTable(view)}</section>`);
     return out.join('');
   }
   const counts = new Map<Verdict, number>();
@@ -373,8 +375,75 @@ function actionSection(view: ReportView): string {
     const cause = g.change ? `<details class="cause"><summary>The change <a href="#c-${view.changeIndex.get(g.change.id)}" class="mono">${esc(g.change.id)}</a></summary><div class="body">${changeBody(view, g.change)}</div></details>` : '';
     out.push(`<div class="group"><h3>${head}${meta}</h3>${cause}${g.mappings.map((m) => mappingRow(view, m)).join('')}</div>`);
   });
+  out.push(settledTable(view));
   out.push('</section>');
   return out.join('');
+}
+
+// ---------------------------------------------------------------------------
+// History (only for a check run with a state folder)
+
+/** Scores of the declining mappings across the recorded releases: one line each, on 0..1. */
+function trendChart(h: ReportHistory): string {
+  const shown = h.declining.slice(0, 8);
+  const labels = h.releases.map((r) => r.label);
+  const left = 34;
+  const right = 120;
+  const stepX = Math.max(70, Math.min(140, Math.floor(420 / Math.max(1, labels.length - 1))));
+  const plotW = Math.max(1, labels.length - 1) * stepX;
+  const plotH = 120;
+  const top = 8;
+  const w = left + plotW + right;
+  const x = (i: number) => left + i * stepX;
+  const y = (v: number) => top + Math.round((1 - v) * plotH);
+  const grid = [0, 0.5, 1].map((v) => `<line x1="${left}" x2="${left + plotW}" y1="${y(v) + 0.5}" y2="${y(v) + 0.5}" stroke="#dedfd9"/><text x="${left - 6}" y="${y(v) + 4}" text-anchor="end" class="muted">${v.toFixed(1)}</text>`);
+  const axis = labels.map((l, i) => `<text x="${x(i)}" y="${top + plotH + 18}" text-anchor="middle">${esc(cut(l, 18))}</text>`);
+  const palette = ['#b4463a', '#3d7ea6', '#c47f2c', '#5f8f6b', '#8a6cb4', '#6f6359', '#2e5a78', '#a2412f'];
+  // End labels, moved apart so that no two overlap (12 px at least), in the order of their lines.
+  const ends = shown.map((t, k) => {
+    const last = t.scores.reduce<number>((a, v, i) => (v === null ? a : i), -1);
+    return { k, last, y: last >= 0 ? y(t.scores[last]!) + 4 : 0 };
+  });
+  const placed = [...ends].filter((e) => e.last >= 0).sort((a, b) => a.y - b.y || a.k - b.k);
+  for (let i = 1; i < placed.length; i++) if (placed[i].y - placed[i - 1].y < 12) placed[i].y = placed[i - 1].y + 12;
+  const hgtNeeded = Math.max(top + plotH + 30, ...placed.map((e) => e.y + 6));
+  const lines = shown.map((t, k) => {
+    const pts = t.scores.map((v, i) => (v === null ? null : `${x(i)},${y(v)}`)).filter((p): p is string => p !== null);
+    const { last, y: labelY } = ends[k];
+    const colour = palette[k % palette.length];
+    const dots = t.scores.map((v, i) => (v === null ? '' : `<circle cx="${x(i)}" cy="${y(v)}" r="2.5" fill="${colour}"/>`)).join('');
+    const end = last >= 0 ? `<text x="${x(last) + 6}" y="${labelY}" fill="${colour}">${esc(cut(t.local_code, 16))}</text>` : '';
+    return `<g><title>${esc(`${t.local_code} ${t.local_label} → ${t.target_id}: ${t.scores.map((v) => (v === null ? 'none' : v.toFixed(2))).join(', ')}`)}</title><polyline points="${pts.join(' ')}" fill="none" stroke="${colour}" stroke-width="1.5"/>${dots}${end}</g>`;
+  });
+  return `<svg width="${w}" height="${hgtNeeded}" viewBox="0 0 ${w} ${hgtNeeded}" role="img" aria-label="Scores of the mappings whose score keeps falling, release by release">${grid.join('')}${axis.join('')}${lines.join('')}</svg>`;
+}
+
+function historySection(report: CheckReport): string {
+  const h = report.history!;
+  const out: string[] = ['<section id="history"><h2>Recorded history</h2>'];
+  out.push(`<p class="small">${formatCount(h.runs.length)} run${h.runs.length === 1 ? '' : 's'} recorded in the state folder, over the releases ${esc(h.releases.map((r) => r.label).join(', '))}. A score is the probability that the local label names the target.</p>`);
+  out.push('<div class="charts">');
+  out.push(`<figure><figcaption>Mappings needing action per run</figcaption>${barChart(h.runs.map((r) => ({ label: cut(`${r.old} → ${r.new}`, 24), value: r.needing_action, colour: '#6f8797' })), 'Mappings needing action per recorded run')}<p class="small">Settled by earlier decisions: ${h.runs.map((r) => formatCount(r.settled)).join(', ')}.</p></figure>`);
+  if (h.declining.length) out.push(`<figure><figcaption>Scores falling release after release</figcaption>${trendChart(h)}${h.declining.length > 8 ? `<p class="small">The first 8 of ${formatCount(h.declining.length)} are drawn.</p>` : ''}</figure>`);
+  out.push('</div>');
+  const p = h.parameters;
+  out.push(`<h3>Falling release after release <span class="tag">${formatCount(h.declining.length)}</span></h3><p class="small">${p.min_drops} or more drops in a row, each at least ${p.min_step}, ${p.min_total_drop} or more in all, up to the latest release.</p>`);
+  if (!h.declining.length) out.push('<p>None.</p>');
+  else {
+    const rows = h.declining.map((t) => {
+      const d = t.decline!;
+      return `<tr><td class="mono">${esc(t.local_code)}</td><td>${esc(t.local_label)}</td><td class="mono">${esc(t.target_id)}</td><td class="mono">${esc(t.scores.map((v) => (v === null ? '·' : v.toFixed(2))).join(' → '))}</td><td>${esc(d.from_release)} to ${esc(d.to_release)}</td><td class="n">${d.total_drop.toFixed(2)}</td><td class="n">${d.largest_step.toFixed(2)}</td><td>${d.step_crossed_threshold ? 'yes' : 'no'}</td></tr>`;
+    });
+    out.push(`<table><tr><th>Local code</th><th>Local label</th><th>Target</th><th>Scores</th><th>Falling</th><th class="n">Fell</th><th class="n">Largest step</th><th>A step crossed the drift threshold</th></tr>${rows.join('')}</table>`);
+  }
+  out.push('</section>');
+  return out.join('');
+}
+
+function settledTable(view: ReportView): string {
+  if (!view.settled.length) return '';
+  const rows = view.settled.map((m) => `<tr><td class="mono">${esc(m.local_code)}</td><td>${esc(m.local_label)}</td><td class="mono">${esc(m.target_id)}</td><td>${swatch(m.verdict)}${esc(VERDICT_INFO[m.verdict].title)}</td><td>${esc(m.settled!.decision)}</td><td>${esc(m.settled!.reviewer)}</td><td>${esc(m.settled!.release)}</td><td>${esc(m.settled!.note)}</td></tr>`);
+  return `<h3>Settled by earlier review decisions <span class="tag">${formatCount(view.settled.length)}</span></h3><p class="small">Accepted, kept or remapped by a reviewer, and the target has not changed since; not listed above and not counted by --fail-on.</p><table><tr><th>Local code</th><th>Local label</th><th>Target</th><th>Verdict</th><th>Decision</th><th>Reviewer</th><th>For release</th><th>Note</th></tr>${rows.join('')}</table>`;
 }
 
 // ---------------------------------------------------------------------------
@@ -384,8 +453,8 @@ function summarySection(view: ReportView): string {
   const out: string[] = ['<section id="summary"><h2>Summary</h2>'];
   const r = view.report;
   if (view.check) {
-    const needing = view.verdictCounts.filter((c) => VERDICT_INFO[c.verdict].action).reduce((n, c) => n + c.count, 0);
-    out.push(`<p>${formatCount(view.check.mappings.length)} mappings checked, ${formatCount(needing)} needing action; ${formatCount(r.changes.length)} changes between the releases, ${formatCount(view.unmappedChanges.length)} touching no mapping.</p>`);
+    const settled = view.settled.length ? ` (${formatCount(view.settled.length)} more settled by earlier review decisions)` : '';
+    out.push(`<p>${formatCount(view.check.mappings.length)} mappings checked, ${formatCount(view.needingAction)} needing action${settled}; ${formatCount(r.changes.length)} changes between the releases, ${formatCount(view.unmappedChanges.length)} touching no mapping.</p>`);
   } else {
     out.push(`<p>${formatCount(r.changes.length)} changes between the releases; ${formatCount(r.parameters.unchanged_concepts)} concepts unchanged.</p>`);
   }
@@ -452,7 +521,8 @@ export function renderHtml(report: Report, options: RenderOptions = {}): string 
   const title = reportTitle(report);
   const old = report.releases.old;
   const neu = report.releases.new;
-  const nav = [['summary', 'Summary'], ...(view.check ? [['actions', 'Mappings needing action'], ['unmapped', 'Changes that touch no mapping']] : []), ['changes', 'Changes'], ['inputs', 'Inputs']]
+  const history = view.check?.history ? view.check : null;
+  const nav = [['summary', 'Summary'], ...(view.check ? [['actions', 'Mappings needing action'], ['unmapped', 'Changes that touch no mapping']] : []), ...(history ? [['history', 'History']] : []), ['changes', 'Changes'], ['inputs', 'Inputs']]
     .map(([id, t]) => `<a href="#${id}">${t}</a>`)
     .join('');
   return [
@@ -474,7 +544,7 @@ export function renderHtml(report: Report, options: RenderOptions = {}): string 
     '<main>',
     summarySection(view),
     view.check ? actionSection(view) : '',
-    view.check ? unmappedSection(view) : '',
+    view.check ? unmappedSection(view) + (history ? historySection(history) : '') : '',
     changeSection(view),
     provenanceSection(view),
     '</main>',

@@ -132,7 +132,8 @@ function candidate(view: ReportView, s: MappingResult['suggestions'][number]): s
 function actionSection(view: ReportView, out: string[]): void {
   out.push('## Mappings needing action', '');
   const which = view.filtered ? `Only the verdicts ${view.verdicts.map((v) => VERDICT_INFO[v].title).join(', ')} are listed.` : 'Every verdict but "No action" is listed.';
-  out.push(`${formatCount(view.actions.length)} mappings, under the change that caused them; the group with the largest total impact comes first, mappings that no change touches last, and within a group the mappings go by impact, then local code. ${which}`, '');
+  const settled = view.settled.length ? ` ${formatCount(view.settled.length)} mapping${view.settled.length === 1 ? ' is' : 's are'} settled by earlier review decisions (accepted, kept or remapped, and the target unchanged since) and not listed.` : '';
+  out.push(`${formatCount(view.actions.length)} mappings, under the change that caused them; the group with the largest total impact comes first, mappings that no change touches last, and within a group the mappings go by impact, then local code. ${which}${settled}`, '');
   if (!view.actions.length) {
     out.push('None.', '');
     return;

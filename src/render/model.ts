@@ -4,8 +4,8 @@
  *
  * - changes in sections by severity (does the kind change what a code means?) then by kind,
  *   kinds in CHANGE_KINDS order (most dangerous first);
- * - mappings needing action (verdict other than ok), ordered by impact, then local code, then
- *   source line; and the same mappings grouped under the change that caused them (the grouping
+ * - mappings needing action (verdict other than ok, not settled by an earlier review decision),
+ *   ordered by impact, then local code, then source line; the settled ones apart; and the same mappings grouped under the change that caused them (the grouping
  *   of rankByImpact's groupByChange: groups by total impact), those no change touches last;
  * - the changes that touch no mapping, listed after the groups;
  * - counts by verdict and by kind, impact buckets, the input accounting table and the
@@ -143,8 +143,12 @@ export interface ReportView {
   /** The verdicts listed, and whether the caller chose them. */
   verdicts: Verdict[];
   filtered: boolean;
-  /** Mappings with a listed verdict, by impact (descending), local code, line. */
+  /** Mappings with a listed verdict and not settled by an earlier decision, by impact (descending), local code, line. */
   actions: MappingResult[];
+  /** Mappings settled by an earlier review decision (MappingResult.settled), in the same order; never listed as needing action. */
+  settled: MappingResult[];
+  /** Mappings whose verdict needs a reviewer and that no earlier decision settles. */
+  needingAction: number;
   /** The same mappings under the change that caused them, largest total impact first; those no change touches last. */
   groups: ActionGroup[];
   /** Changes that touch no mapping, in report order. */
@@ -204,7 +208,9 @@ export function buildView(report: Report, options: ViewOptions = {}): ReportView
   const verdicts = options.verdicts ? VERDICTS.filter((v) => options.verdicts!.includes(v)) : ACTION_VERDICTS;
   const verdictCounts = check ? VERDICTS.map((verdict) => ({ verdict, title: VERDICT_INFO[verdict].title, count: check.verdict_summary[verdict] ?? 0 })) : [];
 
-  const actions = check ? check.mappings.filter((m) => verdicts.includes(m.verdict)).sort(compareByImpact) : [];
+  const actions = check ? check.mappings.filter((m) => verdicts.includes(m.verdict) && !m.settled).sort(compareByImpact) : [];
+  const settled = check ? check.mappings.filter((m) => m.settled).sort(compareByImpact) : [];
+  const needingAction = check ? check.mappings.filter((m) => VERDICT_INFO[m.verdict].action && !m.settled).length : 0;
   const touches = new Map<string, { total: number; listed: number }>();
   const listedSet = new Set(actions);
   for (const m of check?.mappings ?? []) {
@@ -225,6 +231,8 @@ export function buildView(report: Report, options: ViewOptions = {}): ReportView
     verdicts,
     filtered: options.verdicts !== undefined,
     actions,
+    settled,
+    needingAction,
     groups: groupByCause(actions, report.changes),
     unmappedChanges: check ? check.changes_without_mappings.map((id) => changeById.get(id)).filter((c): c is Change => c !== undefined) : [],
     impact: impactBuckets(actions.map((m) => m.impact)),

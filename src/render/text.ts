@@ -96,8 +96,8 @@ function summary(view: ReportView, st: Style, out: string[]): void {
   out.push(st.head('Summary'));
   const check = view.check;
   if (check) {
-    const needing = view.verdictCounts.filter((c) => VERDICT_INFO[c.verdict].action).reduce((n, c) => n + c.count, 0);
-    out.push(`  ${formatCount(check.mappings.length)} mappings, ${formatCount(needing)} needing action; ${formatCount(view.report.changes.length)} changes, ${formatCount(view.unmappedChanges.length)} of them touching no mapping.`);
+    const settled = view.settled.length ? ` (${formatCount(view.settled.length)} more settled by earlier review decisions)` : '';
+    out.push(`  ${formatCount(check.mappings.length)} mappings, ${formatCount(view.needingAction)} needing action${settled}; ${formatCount(view.report.changes.length)} changes, ${formatCount(view.unmappedChanges.length)} of them touching no mapping.`);
     out.push('');
     out.push(`  ${pad('Verdict', 18)}${padLeft('Mappings', 9)}`);
     for (const c of view.verdictCounts) out.push(`  ${st.verdict(c.verdict, pad(c.title, 18))}${padLeft(formatCount(c.count), 9)}`);
@@ -121,6 +121,7 @@ function mappingList(view: ReportView, st: Style, limit: number, out: string[]):
   const width = String(shown.length).length;
   shown.forEach((m, i) => mappingBlock(view, st, m, padLeft(String(i + 1), width), out));
   if (shown.length < view.actions.length) out.push(st.dim(`  … ${formatCount(view.actions.length - shown.length)} more not shown (limit ${limit})`));
+  if (view.settled.length) out.push(st.dim(`  ${formatCount(view.settled.length)} mapping${view.settled.length === 1 ? '' : 's'} settled by earlier review decisions (accepted, kept or remapped, target unchanged since) not listed`));
   out.push('');
 
   out.push(st.head('Changes that touch no mapping') + st.dim(` (${formatCount(view.unmappedChanges.length)})`));

@@ -47,6 +47,8 @@ export interface CheckReport extends DiffReport {
   changes_without_mappings: string[];
   /** Set by `--fail-on`: the level and whether it was reached. */
   fail_on?: { level: import('../rescore/types.js').Verdict; reached: boolean; mappings: number };
+  /** Only with a state folder: the recorded runs and the mappings whose score keeps falling (docs/STATE.md). */
+  history?: import('../state/history.js').ReportHistory;
 }
 
 export type Report = DiffReport | CheckReport;

@@ -40,6 +40,23 @@ export interface MappingResult {
   reasons: string[];
   /** Source line of the mapping. */
   line: number;
+  /**
+   * Set when a reviewer's earlier decision (recorded by `apply` in the state) covers this mapping
+   * and its target has not changed since: the mapping is left out of the lists of mappings needing
+   * action and of --fail-on. Independent of the verdict, which is reported as computed.
+   */
+  settled?: Settlement;
+}
+
+/** The decision that settles a mapping (see MappingResult.settled and docs/STATE.md). */
+export interface Settlement {
+  decision: 'accept' | 'keep' | 'remap';
+  reviewer: string;
+  note: string;
+  /** Label of the release the decision was made for. */
+  release: string;
+  /** ISO time of the decision ('' when none was recorded). */
+  time: string;
 }
 
 export interface ScorerInfo {
