@@ -2,14 +2,15 @@
  * ReleaseBuilder: turns release rows into the columnar `Release`, from bytes or from strings.
  *
  * Hot path. `rowBytes` takes a plain TSV record as byte ranges in one of the file's blocks and
- * stores integers only: the term's block and the byte ranges of its text and term_id, the concept
- * found by comparing the id bytes with the previous row's (rows are usually grouped by concept)
- * and, when they differ, through a hash table over id bytes (releaseBytes.ts); term_type,
- * status, term_status, category and language through small caches of byte sequences already
- * seen. A concept id is decoded to a string once, when the concept is first seen. Measured on
- * two synthetic releases of 4.1 M rows each (docs/BENCHMARKS.md, "Loading"): a JS `Map` keyed by
- * concept id strings cost about 4 s of CPU of a 9 s load, the byte table about 2 s, so the
- * `conceptIndex` Map is built only when a consumer asks for it.
+ * stores integers only: the term's block and the byte ranges of its text and term_id; the concept
+ * found by comparing the id bytes with the previous row's (rows are usually grouped by concept),
+ * and on a change with the last concept's (ids usually come in increasing order, so a greater id
+ * is a new concept) — only a release whose ids are out of order gets a hash table over id bytes
+ * (releaseBytes.ts); term_type, status, term_status, category and language through small caches
+ * of byte sequences already seen. A concept id is decoded to a string once, when the concept is
+ * first seen; no `Map` keyed by id strings is built while loading (measured in
+ * docs/BENCHMARKS.md, "Loading": on two releases of 4.1 M rows such a Map cost 4 to 5 s of CPU,
+ * a hash table over the bytes about 2 s, the order check next to nothing).
  *
  * `row` is the string path (CSV, and any TSV line the byte reader does not take). `rowBytes`
  * hands a record to `row` whenever it is not the common case — an empty or padded value, an
@@ -22,7 +23,7 @@ import { quoteValue, type RowLedger } from './ledger.js';
 import { resolveColumns, type ColumnRenames, type ColumnSpec } from './columns.js';
 import { Interner, clean } from './growable.js';
 import { ACTIVE, INACTIVE, PREFERRED, SYNONYM } from './types.js';
-import { hashBytes, probeConcept, rehashConcepts, viewOf, viewsEqual, type ConceptTable } from './releaseBytes.js';
+import { compareBytes, hashBytes, probeConcept, rehashConcepts, viewOf, viewsEqual, type ConceptTable } from './releaseBytes.js';
 
 export const RELEASE_COLUMNS: readonly ColumnSpec[] = [
   { name: 'concept_id', required: true },
@@ -188,6 +189,9 @@ export class ReleaseBuilder {
   private conceptCategory = new Int32Array(this.conceptCap);
   private conceptLine = new Int32Array(this.conceptCap);
   private readonly concepts: ConceptTable;
+  // Hash and table slot of the id `locate` last found to be new (hash-table layout).
+  private newHash = 0;
+  private newSlot = 0;
   // The previous row's concept: its id bytes (byte path) or string (string path).
   private prevView: DataView | null = null;
   private prevStart = 0;
@@ -232,8 +236,9 @@ export class ReleaseBuilder {
       block: new Int32Array(this.conceptCap),
       start: new Int32Array(this.conceptCap),
       end: new Int32Array(this.conceptCap),
+      sorted: true,
       hash: new Int32Array(this.conceptCap),
-      table: new Int32Array(1 << 15),
+      table: new Int32Array(0),
     };
   }
 
@@ -309,13 +314,12 @@ export class ReleaseBuilder {
       const need = id.length * 3;
       if (this.scratch.length < need) this.scratch = Buffer.allocUnsafe(Math.max(need, this.scratch.length * 2));
       const len = this.scratch.write(id, 0, 'utf8');
-      const h = hashBytes(this.scratch, 0, len);
-      c = probeConcept(this.concepts, this.scratch, 0, len, h);
+      c = this.locate(this.scratch, 0, len);
       if (c < 0) {
         const at = this.reserveSide(len);
         this.scratch.copy(this.side!, at, 0, len);
         this.sidePos += len;
-        c = this.addConcept(this.sideNo, at, at + len, h, -1 - c, id, status, category, line);
+        c = this.addConcept(this.sideNo, at, at + len, id, status, category, line);
       }
       this.lastId = id;
       this.lastConcept = c;
@@ -425,12 +429,8 @@ export class ReleaseBuilder {
     const len = e0 - s0;
     const prev = this.prevView;
     if (prev === null || this.prevEnd - this.prevStart !== len || !viewsEqual(prev, this.prevStart, view, s0, len)) {
-      const h = hashBytes(buf, s0, e0);
-      c = probeConcept(this.concepts, buf, s0, e0, h);
-      if (c < 0) {
-        const id = buf.toString(ascii ? 'latin1' : 'utf8', s0, e0);
-        c = this.addConcept(blockNo, s0, e0, h, -1 - c, id, status, category, line);
-      }
+      c = this.locate(buf, s0, e0);
+      if (c < 0) c = this.addConcept(blockNo, s0, e0, buf.toString(ascii ? 'latin1' : 'utf8', s0, e0), status, category, line);
       this.prevView = view;
       this.prevStart = s0;
       this.prevEnd = e0;
@@ -492,7 +492,32 @@ export class ReleaseBuilder {
     return this.sidePos;
   }
 
-  private addConcept(block: number, s: number, e: number, h: number, slot: number, id: string, status: number, category: number, line: number): number {
+  /**
+   * The concept whose id is buf[s..e), or -1 when it is new. While ids come in increasing byte
+   * order (the usual layout) one comparison with the last concept decides; the first id out of
+   * order builds the hash table, which is used from then on.
+   */
+  private locate(buf: Uint8Array, s: number, e: number): number {
+    const t = this.concepts;
+    if (t.sorted) {
+      const last = this.conceptCount - 1;
+      if (last < 0) return -1;
+      const cmp = compareBytes(t.blocks[t.block[last]], t.start[last], t.end[last], buf, s, e);
+      if (cmp < 0) return -1;
+      if (cmp === 0) return last;
+      t.sorted = false;
+      for (let c = 0; c < this.conceptCount; c++) t.hash[c] = hashBytes(t.blocks[t.block[c]], t.start[c], t.end[c]);
+      t.table = rehashConcepts(t.hash, this.conceptCount, Math.max(this.conceptCap * 2, 1 << 15));
+    }
+    const h = hashBytes(buf, s, e);
+    const c = probeConcept(t, buf, s, e, h);
+    this.newHash = h;
+    this.newSlot = -1 - c;
+    return c < 0 ? -1 : c;
+  }
+
+  /** Add the concept whose id is in `block` at s..e, just reported new by `locate`. */
+  private addConcept(block: number, s: number, e: number, id: string, status: number, category: number, line: number): number {
     const c = this.conceptCount;
     if (c === this.conceptCap) this.growConcepts(c * 2);
     this.conceptIds.push(id);
@@ -503,10 +528,12 @@ export class ReleaseBuilder {
     t.block[c] = block;
     t.start[c] = s;
     t.end[c] = e;
-    t.hash[c] = h;
     this.conceptCount = c + 1;
-    if (this.conceptCount * 2 > t.table.length) t.table = rehashConcepts(t.hash, this.conceptCount, t.table.length * 2);
-    else t.table[slot] = c + 1;
+    if (!t.sorted) {
+      t.hash[c] = this.newHash;
+      if (this.conceptCount * 2 > t.table.length) t.table = rehashConcepts(t.hash, this.conceptCount, t.table.length * 2);
+      else t.table[this.newSlot] = c + 1;
+    }
     return c;
   }
 
@@ -565,7 +592,7 @@ export class ReleaseBuilder {
       if (concepts > this.conceptCap) {
         this.growConcepts(concepts);
         const t = this.concepts;
-        t.table = rehashConcepts(t.hash, this.conceptCount, concepts * 2);
+        if (!t.sorted) t.table = rehashConcepts(t.hash, this.conceptCount, concepts * 2);
       }
     }
   }
@@ -591,7 +618,7 @@ export class ReleaseBuilder {
     const status = fit(this.conceptStatus, k);
     for (let c = 0; c < k; c++) if (status[c] === UNSTATED) status[c] = ACTIVE;
     const t = this.concepts;
-    const concepts: ConceptTable = { blocks: this.blocks, block: fit(t.block, k), start: fit(t.start, k), end: fit(t.end, k), hash: fit(t.hash, k), table: t.table };
+    const concepts: ConceptTable = { blocks: this.blocks, block: fit(t.block, k), start: fit(t.start, k), end: fit(t.end, k), sorted: t.sorted, hash: fit(t.hash, k), table: t.table };
     return {
       conceptCount: k,
       conceptIds: this.conceptIds,

@@ -3,12 +3,13 @@
  *
  * A loaded release keeps the UTF-8 bytes it was read from (the file's blocks, plus small side
  * blocks for values that came through the string path) and, per term, only integers: the block
- * and the byte ranges of its text and its term_id. Concept ids are hashed into an
- * open-addressing table over their bytes. No string is created per row while loading; strings
- * are made when asked for:
+ * and the byte ranges of its text and its term_id. Concept ids are byte ranges too, found by
+ * binary search when they came in increasing order and through a hash table over their bytes
+ * otherwise. No string is created per row while loading; strings are made when asked for:
  *  - `termTextAt(r, t)` / `termIdAt(r, t)` decode one value;
  *  - `termTextEquals(a, t, b, u)` compares two terms' bytes without decoding;
- *  - `conceptIndexOf(r, id)` and `matchConceptIds(a, b)` find concepts by id through the table;
+ *  - `conceptIndexOf(r, id)` and `matchConceptIds(a, b)` find concepts by id bytes (a merge of
+ *    two releases whose ids are in order; no Map is built);
  *  - `release.termText`, `release.termId` and `release.conceptIndex` stay plain `string[]` /
  *    `Map` for every consumer: they are lazy properties, built in full on first access and
  *    cached (assigning to them replaces the value as for a plain property).
@@ -47,19 +48,38 @@ export function viewsEqual(a: DataView, as: number, b: DataView, bs: number, len
   return true;
 }
 
-/** Concept ids as byte ranges plus an open-addressing hash table (slot holds concept + 1, 0 = empty). */
+/** Order of a[as..ae) and b[bs..be) byte by byte, a shorter prefix first: <0, 0 or >0. */
+export function compareBytes(a: Uint8Array, as: number, ae: number, b: Uint8Array, bs: number, be: number): number {
+  const la = ae - as;
+  const lb = be - bs;
+  const n = la < lb ? la : lb;
+  for (let i = 0; i < n; i++) {
+    const d = a[as + i] - b[bs + i];
+    if (d !== 0) return d;
+  }
+  return la - lb;
+}
+
+/**
+ * Concept ids as byte ranges. When the ids came in strictly increasing byte order (`sorted`, the
+ * usual layout of a release) they are found by binary search and paired across releases by a
+ * merge; otherwise through an open-addressing hash table (slot holds concept + 1, 0 = empty)
+ * over FNV-1a hashes of the bytes.
+ */
 export interface ConceptTable {
   blocks: Buffer[];
   block: Int32Array;
   start: Int32Array;
   end: Int32Array;
+  /** True when concept c's id is below concept c+1's for every c; `hash` and `table` then unused. */
+  sorted: boolean;
   hash: Int32Array;
   table: Int32Array;
 }
 
 /**
- * Find the concept whose id is buf[s..e) (hash h). Returns the concept, or `-1 - slot` with the
- * empty slot where it would be inserted.
+ * Find the concept whose id is buf[s..e) (hash h) in the hash table. Returns the concept, or
+ * `-1 - slot` with the empty slot where it would be inserted.
  */
 export function probeConcept(t: ConceptTable, buf: Uint8Array, s: number, e: number, h: number): number {
   const table = t.table;
@@ -76,6 +96,24 @@ export function probeConcept(t: ConceptTable, buf: Uint8Array, s: number, e: num
     }
     p = (p + 1) & mask;
   }
+}
+
+/** The concept of `count` concepts whose id is buf[s..e), or -1 (either layout). */
+export function findConcept(t: ConceptTable, count: number, buf: Uint8Array, s: number, e: number): number {
+  if (!t.sorted) {
+    const c = probeConcept(t, buf, s, e, hashBytes(buf, s, e));
+    return c < 0 ? -1 : c;
+  }
+  let lo = 0;
+  let hi = count - 1;
+  while (lo <= hi) {
+    const mid = (lo + hi) >>> 1;
+    const cmp = compareBytes(t.blocks[t.block[mid]], t.start[mid], t.end[mid], buf, s, e);
+    if (cmp === 0) return mid;
+    if (cmp < 0) lo = mid + 1;
+    else hi = mid - 1;
+  }
+  return -1;
 }
 
 /** A table of at least twice `count` slots (a power of two) holding concepts 0..count-1. */
@@ -203,8 +241,7 @@ export class ReleaseBytes {
     const need = id.length * 3;
     if (scratch.length < need) scratch = Buffer.allocUnsafe(Math.max(need, scratch.length * 2));
     const len = scratch.write(id, 0, 'utf8');
-    const c = probeConcept(this.concepts, scratch, 0, len, hashBytes(scratch, 0, len));
-    return c < 0 ? -1 : c;
+    return findConcept(this.concepts, this.conceptIds.length, scratch, 0, len);
   }
 }
 
@@ -287,10 +324,19 @@ export function matchConceptIds(a: Release, b: Release): Int32Array {
   const bb = bytesOf(b);
   if (tableUsable(a, ba) && tableUsable(b, bb)) {
     const ca = ba.concepts;
-    for (let c = 0; c < a.conceptCount; c++) {
-      const found = probeConcept(bb.concepts, ca.blocks[ca.block[c]], ca.start[c], ca.end[c], ca.hash[c]);
-      out[c] = found < 0 ? -1 : found;
+    const cb = bb.concepts;
+    if (ca.sorted && cb.sorted) {
+      // Both in id order: one merge, no lookups.
+      let k = 0;
+      for (let c = 0; c < a.conceptCount; c++) {
+        const abuf = ca.blocks[ca.block[c]];
+        let cmp = -1;
+        while (k < b.conceptCount && (cmp = compareBytes(cb.blocks[cb.block[k]], cb.start[k], cb.end[k], abuf, ca.start[c], ca.end[c])) < 0) k++;
+        out[c] = k < b.conceptCount && cmp === 0 ? k : -1;
+      }
+      return out;
     }
+    for (let c = 0; c < a.conceptCount; c++) out[c] = findConcept(cb, b.conceptCount, ca.blocks[ca.block[c]], ca.start[c], ca.end[c]);
     return out;
   }
   for (let c = 0; c < a.conceptCount; c++) out[c] = conceptIndexOf(b, a.conceptIds[c]);

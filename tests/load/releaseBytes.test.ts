@@ -77,4 +77,25 @@ describe('finding concepts and comparing terms across releases', () => {
     const s = await load(rows, 'r.tsv', 'strings');
     expect(Array.from(matchConceptIds(r, s))).toEqual(Array.from({ length: 5000 }, (_, c) => c));
   });
+
+  it('pairs concepts the same way whether ids came in order (merge, binary search) or not (hash table)', async () => {
+    const id = (k: number) => `K${String(k).padStart(5, '0')}`;
+    const sortedRows: string[][] = [];
+    for (let k = 0; k < 3000; k += 2) sortedRows.push([id(k), `t${k}`, '', '']);
+    // In order for 2,000 concepts, then one out of order: the table is built part way through.
+    const lateRows = sortedRows.slice(0, 1000).concat([[id(1), 't1', '', '']], sortedRows.slice(1000));
+    const threeRows: string[][] = [];
+    for (let k = 0; k < 3005; k += 3) threeRows.push([id(k), `s${k}`, '', '']);
+    const mixedRows: string[][] = [];
+    for (let k = 0; k < 3000; k += 3) mixedRows.push([id((k * 7) % 3000), `m${k}`, '', '']);
+    const releases = [await load(sortedRows), await load(threeRows), await load(lateRows), await load(mixedRows), await load(mixedRows, 'm.tsv', 'strings')];
+    for (const a of releases) {
+      for (const b of releases) {
+        const expected = a.conceptIds.map((x) => b.conceptIds.indexOf(x));
+        expect(Array.from(matchConceptIds(a, b))).toEqual(expected);
+      }
+      for (let k = 0; k < 3010; k += 7) expect(conceptIndexOf(a, id(k))).toBe(a.conceptIds.indexOf(id(k)));
+    }
+  });
 });
+
