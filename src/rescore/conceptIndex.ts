@@ -22,7 +22,7 @@ import { STOP_WORDS, foldTerm, stemToken } from '../text/normalize.js';
 import { GrowableInt32 } from '../load/growable.js';
 
 /** Postings scanned per generating word at most (a bound on the work of one query). */
-const CANDIDATE_SCAN_MAX = 200_000;
+const CANDIDATE_SCAN_MAX = 20_000;
 /** Candidates per query text scored on all its words. */
 const CANDIDATES_FULL = 500;
 
@@ -35,7 +35,7 @@ export interface IndexHit {
 }
 
 export interface ConceptIndexOptions {
-  /** Words on more terms than this do not generate candidates (default: 0.5 % of the active terms, at least 2,000). */
+  /** Words on more terms than this do not generate candidates (default 2,000: a bound that keeps one search independent of the release size). */
   maxPosting?: number;
   /** Lowest trigram-Dice for a vocabulary word to stand in for a query word. */
   fuzzyMin?: number;
@@ -136,7 +136,7 @@ export class ConceptIndex {
     for (let k = 0; k < pairs; k++) tWords[tFill[pairTerm[k]]++] = pairWord[k];
     this.termStart = tStart;
     this.termWords = tWords;
-    this.maxPosting = options.maxPosting ?? Math.max(2000, Math.ceil(active * 0.005));
+    this.maxPosting = options.maxPosting ?? 2000;
     this.scratch = new Float64Array(release.termCount);
   }
 
