@@ -5,9 +5,11 @@
  * Works on any BaseRelease (the synthetic vocabulary, or an imported release through
  * genericTerms.ts). Each injected change touches its own concepts: no concept is touched by
  * two changes, and the parents and children of touched concepts are left alone too, so each
- * change has one reading. Concepts whose identifier ends (retired, replaced, merged away,
- * split into new identifiers, reorganized, reused) are leaves, so no child is left under an
- * inactive parent.
+ * change has one reading; so are concepts that share a lexical key with another concept
+ * (duplicates and homonyms of an imported release), since the aligner could pair their terms.
+ * Concepts whose identifier ends (retired, replaced, merged away, split into new identifiers,
+ * reorganized, reused) are leaves, so no child is left under an inactive parent. Each kind
+ * picks its concepts from its own random point of one shuffled order.
  *
  * The truth follows the definitions the detectors implement (classify/context.ts):
  * - a new concept carries an ending one when it receives its preferred term, or at least
