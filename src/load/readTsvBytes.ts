@@ -2,15 +2,18 @@
  * readTsvBytes: read a TSV table as bytes, handing plain records to the sink as byte ranges.
  *
  * Hot path; measured in docs/BENCHMARKS.md ("Loading"). On two synthetic releases of 4.1 M rows
- * (335 MB) each, decoding to strings and splitting lines into field strings — even with no
- * other work — costs as much as the whole budget for loading, and keeping one string per row
- * alive costs more again (garbage collection of retained strings). So this reader makes no
- * string per row: the file is read straight into a few large blocks that stay alive (memory
- * about the file's size), one loop over the bytes finds line ends and tabs and notes NUL bytes,
- * quotes at the start of a field and bytes ≥ 0x80, and a plain record is passed on as
- * (block, start[], end[]). Reading the file into one block per file rather than keeping the
- * stream's 1 MiB chunks avoids the collector's reaction to hundreds of retained external buffers
- * (about 1 s of CPU per 670 MB in the measurement).
+ * (335 MB) each, decoding to strings and splitting every line into field strings with no other
+ * work (`phase.js split`, the floor the loader is held to: at most 1.5 times it) took 7.6–9.7 s
+ * of CPU, and keeping one or two strings per row alive costs more than that again (garbage
+ * collection of retained strings). So this reader makes no string per row: the file is read
+ * straight into large blocks that stay alive (one block for an uncompressed file; memory about
+ * the file's size), one JS loop over the bytes finds line ends and tabs and notes NUL bytes,
+ * quotes at the start of a field and bytes ≥ 0x80 (as fast as `indexOf` per line end and per
+ * tab, which would still need a second pass for the flags), and a plain record is passed on as
+ * (block, start[], end[]). The bare scan of both files took 3.2–3.7 s of CPU with one block per
+ * file and 3.6–4.6 s when the stream's 1 MiB chunks were kept alive instead (hundreds of retained
+ * external buffers make the collector run more often). The next read is started before the
+ * bytes already read are scanned.
  *
  * Any line that is not plain goes through the LineReader (lineReader.ts) as text, so
  * diagnostics, quote recovery and row accounting are those of readTable: lines before and
@@ -25,6 +28,7 @@ import { promises as fsp, createReadStream } from 'node:fs';
 import { createHash } from 'node:crypto';
 import { createGunzip } from 'node:zlib';
 import { isUtf8 } from 'node:buffer';
+import { Worker } from 'node:worker_threads';
 import { InputError } from '../errors.js';
 import type { RowLedger } from './ledger.js';
 import { LineReader, type TableSink } from './lineReader.js';
@@ -53,6 +57,8 @@ export interface ReadTsvBytesOptions extends ReadTableOptions {
    * 64 MiB blocks. Small values (tests) make lines cross block ends.
    */
   blockSize?: number;
+  /** Uncompressed files of at least this many bytes are hashed in a worker thread (default 64 MiB). */
+  hashInThreadFrom?: number;
 }
 
 const MIB = 1 << 20;
@@ -67,20 +73,75 @@ interface ByteSource {
   close(): Promise<void>;
 }
 
-function plainSource(fh: fsp.FileHandle, hash: ReturnType<typeof createHash>): ByteSource {
+/** SHA-256 of the bytes read, in order. */
+interface Hasher {
+  update(bytes: Buffer, at: number, n: number): void;
+  digest(): Promise<string>;
+  /** Stop (a worker is terminated); safe to call twice. */
+  close(): Promise<void>;
+}
+
+function inlineHasher(): Hasher {
+  const hash = createHash('sha256');
+  return {
+    update: (bytes, at, n) => void hash.update(bytes.subarray(at, at + n)),
+    digest: async () => hash.digest('hex'),
+    close: async () => {},
+  };
+}
+
+/** A large uncompressed file is hashed in a worker thread, beside the scan. */
+const HASH_IN_WORKER_FROM = 64 * MIB;
+
+const HASH_WORKER = `
+const { parentPort } = require('node:worker_threads');
+const { createHash } = require('node:crypto');
+const hash = createHash('sha256');
+parentPort.on('message', (m) => {
+  if (m === null) parentPort.postMessage(hash.digest('hex'));
+  else hash.update(new Uint8Array(m.buffer, m.offset, m.length));
+});`;
+
+/**
+ * SHA-256 in a worker thread, over blocks backed by a SharedArrayBuffer (nothing is copied).
+ * Measured: hashing 670 MB on the main thread took about 0.45 s of its 10 s of CPU.
+ */
+function workerHasher(): Hasher {
+  const worker = new Worker(HASH_WORKER, { eval: true });
+  const result = new Promise<string>((resolve, reject) => {
+    worker.once('message', resolve);
+    worker.once('error', reject);
+    worker.once('exit', (code) => reject(new Error(`the hashing thread stopped (exit code ${code})`)));
+  });
+  result.catch(() => {});
+  return {
+    update(bytes, at, n) {
+      worker.postMessage({ buffer: bytes.buffer, offset: bytes.byteOffset + at, length: n });
+    },
+    digest() {
+      worker.postMessage(null);
+      return result;
+    },
+    async close() {
+      await worker.terminate();
+    },
+  };
+}
+
+function plainSource(fh: fsp.FileHandle, hasher: Hasher): ByteSource {
   return {
     async read(into, at, max) {
       const { bytesRead } = await fh.read(into, at, max, null);
-      if (bytesRead > 0) hash.update(into.subarray(at, at + bytesRead));
+      if (bytesRead > 0) hasher.update(into, at, bytesRead);
       return bytesRead;
     },
     close: () => fh.close(),
   };
 }
 
-function gzipSource(path: string, hash: ReturnType<typeof createHash>): ByteSource {
+function gzipSource(path: string, hasher: Hasher): ByteSource {
   const raw = createReadStream(path, { highWaterMark: MIB });
-  raw.on('data', (chunk) => hash.update(chunk as Buffer));
+  raw.on('data', (chunk) => hasher.update(chunk as Buffer, 0, (chunk as Buffer).length));
   const gunzip = createGunzip();
   raw.on('error', (e) => gunzip.destroy(e));
   const chunks = raw.pipe(gunzip)[Symbol.asyncIterator]() as AsyncIterator<Buffer>;
@@ -126,8 +187,6 @@ class TsvScanner {
   private fast = false;
   /** Bytes from the start of the pending incomplete line known to hold no line end. */
   private noLineEnd = 0;
-  /** Bytes so far of a line longer than the LineReader's lineLimit, skipped to its end (-1: none). */
-  private skipped = -1;
   // A stretch of the current block whose UTF-8 was checked at once.
   private checkedBuf: Buffer | null = null;
   private checkedEnd = 0;
@@ -141,26 +200,13 @@ class TsvScanner {
    */
   scan(buf: Buffer, blockNo: number, pos: number, len: number, final: boolean): number {
     const lr = this.lr;
-    if (this.skipped >= 0) {
-      // Inside a line too long to read: find its end, count it, go on after it.
-      const nl = lineEnd(buf, pos, len);
-      if (nl === -1) {
-        this.skipped += len - pos;
-        if (final) this.endSkip();
-        return len;
-      }
-      this.skipped += nl - pos;
-      this.endSkip();
-      pos = nl + 1;
-      if (lr.stop) return pos;
-    }
     if (this.noLineEnd > 0 && !final) {
       // The line left incomplete last time: look for its end natively before scanning it again,
       // so that a long line is scanned once, not once per read.
       const nl = lineEnd(buf, pos + this.noLineEnd, len);
       if (nl === -1) {
         this.noLineEnd = len - pos;
-        return this.keepOrSkip(pos, len);
+        return pos;
       }
     }
     this.noLineEnd = 0;
@@ -170,7 +216,7 @@ class TsvScanner {
         if (nl === -1) {
           if (!final) {
             this.noLineEnd = len - pos;
-            return this.keepOrSkip(pos, len);
+            return pos;
           }
           nl = len;
         }
@@ -202,7 +248,7 @@ class TsvScanner {
       }
       if (i === len && !final) {
         this.noLineEnd = len - pos;
-        return this.keepOrSkip(pos, len);
+        return pos;
       }
       let e = i;
       if (e > pos && buf[e - 1] === 13) e--;
@@ -217,31 +263,12 @@ class TsvScanner {
     return pos;
   }
 
-  /**
-   * The incomplete line from `pos` is kept for the next read (returns pos) unless it is already
-   * longer than the LineReader's lineLimit: then its bytes are skipped (returns len).
-   */
-  private keepOrSkip(pos: number, len: number): number {
-    if (len - pos <= this.lr.lineLimit) return pos;
-    this.noLineEnd = 0;
-    this.skipped = len - pos;
-    return len;
-  }
-
-  /** Count the line being skipped, if any (at its line end, or at the end of the input). */
-  endSkip(): void {
-    if (this.skipped < 0) return;
-    const bytes = this.skipped;
-    this.skipped = -1;
-    this.lr.longLine(bytes);
-  }
-
   /** One line through the LineReader, as text (its `\r`, if any, included). */
   private slowLine(buf: Buffer, s: number, e: number): void {
     const lr = this.lr;
+    const text = buf.toString('utf8', s, e);
     const hadHeader = lr.headerCount >= 0;
-    if (e - s > lr.lineLimit) lr.longLine(e - s);
-    else lr.line(buf.toString('utf8', s, e));
+    lr.line(text);
     if (!hadHeader && lr.headerCount >= 0) {
       this.start = new Int32Array(lr.headerCount);
       this.end = new Int32Array(lr.headerCount);
@@ -286,7 +313,6 @@ export async function readTsvBytes(path: string, ledger: RowLedger, sink: ByteTa
     maxRecords: options.maxRecords ?? Infinity,
   });
   const scanner = new TsvScanner(lr, sink, maxField);
-  const hash = createHash('sha256');
   const blocks = options.blocks;
   const readSize = Math.max(1, options.readSize ?? MIB);
 
@@ -294,9 +320,32 @@ export async function readTsvBytes(path: string, ledger: RowLedger, sink: ByteTa
   const fileSize = (await fsp.stat(path)).size;
   const nextSize = options.blockSize ?? GROW_BLOCK;
   const firstSize = options.blockSize ?? (compressed ? Math.min(GROW_BLOCK, Math.max(1 << 16, fileSize * 4)) : Math.min(MAX_BLOCK, fileSize + 1));
-  const source = compressed ? gzipSource(path, hash) : plainSource(await fsp.open(path, 'r'), hash);
+  const shared = !compressed && fileSize >= (options.hashInThreadFrom ?? HASH_IN_WORKER_FROM);
+  const hasher = shared ? workerHasher() : inlineHasher();
+  try {
+    const allocBlock = (size: number) => (shared ? Buffer.from(new SharedArrayBuffer(size)) : Buffer.allocUnsafeSlow(size));
+    const source = compressed ? gzipSource(path, hasher) : plainSource(await fsp.open(path, 'r'), hasher);
+    await readBlocks(path, lr, scanner, sink, source, { blocks, readSize, firstSize, nextSize, fileSize, compressed, allocBlock });
+    return finishInfo(path, lr, await hasher.digest(), compressed);
+  } finally {
+    await hasher.close();
+  }
+}
 
-  let block = Buffer.allocUnsafeSlow(Math.max(1, firstSize));
+interface BlockOptions {
+  blocks: Buffer[];
+  readSize: number;
+  firstSize: number;
+  nextSize: number;
+  fileSize: number;
+  compressed: boolean;
+  allocBlock(size: number): Buffer;
+}
+
+/** Read `source` into blocks and scan each stretch as it arrives; ends the LineReader's input. */
+async function readBlocks(path: string, lr: LineReader, scanner: TsvScanner, sink: ByteTableSink, source: ByteSource, o: BlockOptions): Promise<void> {
+  const { blocks, readSize, firstSize, nextSize, fileSize, compressed, allocBlock } = o;
+  let block = allocBlock(Math.max(1, firstSize));
   let blockNo = blocks.push(block) - 1;
   let filled = 0;
   let pos = 0;
@@ -308,7 +357,7 @@ export async function readTsvBytes(path: string, ledger: RowLedger, sink: ByteTa
       if (filled === block.length) {
         // Block full: the incomplete line at its end moves to a fresh block.
         const tail = filled - pos;
-        const next = Buffer.allocUnsafeSlow(Math.max(nextSize, tail * 2));
+        const next = allocBlock(Math.max(nextSize, tail * 2));
         block.copy(next, 0, pos, filled);
         block = next;
         // A block that held nothing but this line is referenced by no record: reuse its slot.
@@ -350,10 +399,8 @@ export async function readTsvBytes(path: string, ledger: RowLedger, sink: ByteTa
   }
   if (!lr.stop) {
     if (pos < filled) scanner.scan(block, blockNo, pos, filled, true);
-    scanner.endSkip();
     lr.end();
   }
   // Give back the unused end of a mostly empty last block (records only point below `filled`).
   if (block.length > 1 << 16 && filled < block.length / 2) blocks[blockNo] = Buffer.from(block.subarray(0, filled));
-  return finishInfo(path, lr, hash.digest('hex'), compressed);
 }

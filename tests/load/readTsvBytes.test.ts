@@ -8,6 +8,10 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import { parse as parseCsvSync } from 'csv-parse/sync';
+import { createHash } from 'node:crypto';
+import { readFileSync } from 'node:fs';
+import { readTsvBytes } from '../../src/load/readTsvBytes.js';
+import { RowLedger } from '../../src/load/ledger.js';
 import { loadRelease, termTextAt, termIdAt, conceptIndexOf, type Release } from '../../src/load/index.js';
 import { tempDir, writeFile } from '../helpers/files.js';
 
@@ -286,5 +290,27 @@ describe('readTsvBytes against outside references', () => {
     expect(r.diagnostics.filter((d) => d.code === 'invalid_utf8').map((d) => d.line)).toEqual(samples.map((_, k) => k + 2).filter((_, k) => refused[k]));
     expect(refused.filter(Boolean)).toHaveLength(bad.length);
     expect(r.termText).toEqual(good.map((seq) => `v ${Buffer.from(seq).toString('utf8')} w`));
+  });
+});
+
+describe('readTsvBytes hashing', () => {
+  it('gives the SHA-256 of the stored bytes, hashed on the main thread or in a worker thread over shared blocks', async () => {
+    const rows = ['concept_id\tterm'];
+    for (let k = 0; k < 3000; k++) rows.push(`C${k}\tterm ${k} é`);
+    const path = writeFile(tempDir(), 'h.tsv', rows.join('\n') + '\n');
+    const expected = createHash('sha256').update(readFileSync(path)).digest('hex');
+    for (const hashInThreadFrom of [0, Infinity]) {
+      for (const blockSize of [undefined, 1000]) {
+        const blocks: Buffer[] = [];
+        let records = 0;
+        const info = await readTsvBytes(path, new RowLedger(path), { header() {}, row() { records++; }, rowBytes() { records++; } }, { blocks, blockSize, readSize: 777, hashInThreadFrom });
+        expect(info.sha256).toBe(expected);
+        expect(records).toBe(3000);
+        expect(blocks[0].buffer instanceof SharedArrayBuffer).toBe(hashInThreadFrom === 0);
+      }
+    }
+    // A whole-file error while the worker runs still ends it (the test would not finish otherwise).
+    const bad = writeFile(tempDir(), 'bad.tsv', '');
+    await expect(readTsvBytes(bad, new RowLedger(bad), { header() {}, row() {}, rowBytes() {} }, { blocks: [], hashInThreadFrom: 0 })).rejects.toMatchObject({ code: 'empty_file' });
   });
 });
