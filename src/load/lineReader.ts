@@ -8,13 +8,15 @@
  * column. Quoting follows RFC 4180: a line whose fields contain no `"` is split directly; a
  * record that uses quotes is handed to csv-parse, the reference parser for quoted CSV. In TSV a
  * quote counts as quoting only when a field starts with it; elsewhere it is a literal character,
- * as is common in terminology exports. A quote that never closes rejects its first line and the
- * lines after it are read again as rows of their own.
+ * as is common in terminology exports. A quote that never closes, or that spans lines and is not
+ * closed where a field ends, rejects its first line and the lines after it are read again as rows
+ * of their own.
  *
  * readTable (strings decoded from a stream) and readTsvBytes (its fallback for lines that are not
  * plain) both drive this one machine, so diagnostics and row accounting do not depend on the path.
  */
 import { parse as parseCsvSync } from 'csv-parse/sync';
+import { InputError } from '../errors.js';
 import type { RowLedger } from './ledger.js';
 
 /** What the reader tells the consumer. */
@@ -61,10 +63,14 @@ function countQuotes(s: string): number {
   return n;
 }
 
-/** Parse one quoted record with csv-parse; `error` (and maybe `column`) when csv-parse rejects it. */
-function parseQuoted(text: string, delimiter: Delimiter): { fields?: string[]; error?: string; column?: number } {
+/**
+ * Parse one quoted record with csv-parse; `error` (and maybe `column`) when csv-parse rejects it.
+ * `strict`: a quote inside an unquoted field, or a closing quote not followed by the delimiter or
+ * the end of the record, is an error (csv-parse without relax_quotes), not a literal character.
+ */
+function parseQuoted(text: string, delimiter: Delimiter, strict = false): { fields?: string[]; error?: string; column?: number } {
   try {
-    const records = parseCsvSync(text, { delimiter, relax_column_count: true, relax_quotes: true, record_delimiter: ['\n'] }) as string[][];
+    const records = parseCsvSync(text, { delimiter, relax_column_count: true, relax_quotes: !strict, record_delimiter: ['\n'] }) as string[][];
     if (records.length !== 1) return { error: `the quotes make ${records.length} records of this line` };
     return { fields: records[0] };
   } catch (err) {
@@ -116,6 +122,15 @@ export class LineReader {
       this.pendingText += '\n' + line;
       if ((countQuotes(line) & 1) === 1) {
         const text = this.pendingText;
+        // A record spanning lines is taken only when its quoting is well-formed (RFC 4180): an
+        // odd quote in the middle of a later field is a literal character, not the end of the
+        // quote opened above. Taken as the end, it would swallow the rows in between into one
+        // field; instead the first line is rejected and the lines after it are read again.
+        const strict = parseQuoted(text, this.delimiter!, true);
+        if (strict.error !== undefined) {
+          this.rejectAndReread(`the quoted field opened on this line is malformed by line ${this.lineNo} (a quote inside a field that is not quoted, or a closing quote not followed by the delimiter); the lines after this one are read as rows of their own`);
+          return;
+        }
         this.pendingText = null;
         this.finishQuoted(text, this.pendingLine);
       } else if (this.pendingLines.length >= MAX_RECORD_LINES || this.pendingText.length > MAX_RECORD_CHARS) {
@@ -140,6 +155,39 @@ export class LineReader {
       return;
     }
     this.handleRecordLine(line, false);
+  }
+
+  /**
+   * Longest physical line, in UTF-8 bytes (its `\r` included), that is read as text. A longer
+   * line cannot be a good record — it has more characters than the header's fields can hold at
+   * the field limit (UTF-8 takes at most 4 bytes a character), or than a quoted record may —
+   * so the readers skip its bytes and count it with `longLine` instead of making a string of
+   * it: a line of hundreds of megabytes (a file without line breaks) would otherwise take time
+   * quadratic in its length to cut and end in an exception for a string too long.
+   */
+  get lineLimit(): number {
+    const fields = this.headerCount < 0 ? 1 : this.headerCount;
+    return 4 * Math.max(MAX_RECORD_CHARS, fields * (this.options.maxFieldLength + 1));
+  }
+
+  /**
+   * One physical line longer than `lineLimit` (`bytes` long), not given as text: it is counted
+   * and rejected. Before the header, the file is not a table: an InputError.
+   */
+  longLine(bytes: number): void {
+    this.lineNo++;
+    const limit = this.lineLimit;
+    if (this.pendingText !== null) this.abandonPending();
+    if (this.headerCount < 0) {
+      throw new InputError('input_too_large', `line ${this.lineNo} is ${bytes} bytes long without a line break, before any header row; this is not a CSV or TSV table`, {
+        location: { file: this.ledger.file, line: this.lineNo, column: 1 },
+        fix: 'give a table with one row per line and a header row first',
+      });
+    }
+    this.ledger.read++;
+    if (++this.records >= this.options.maxRecords) this.stop = true;
+    this.ledger.reject(this.lineNo, 1, 'field_too_long', `the line is ${bytes} bytes long, more than a record of ${this.headerCount} fields of at most ${this.options.maxFieldLength} characters can be (${limit} bytes); it was skipped unread`,
+      'check the file for a missing line break or an unclosed quote');
   }
 
   /** The input ended: a quote still open is judged unbalanced. Not called after `stop`. */
@@ -251,12 +299,17 @@ export class LineReader {
 
   /** The pending quote never closed: reject its first line, read the rest again as rows. */
   private abandonPending(): void {
+    this.rejectAndReread(`a quote opened on this line is not closed within ${Math.min(this.pendingLines.length, MAX_RECORD_LINES)} lines`);
+  }
+
+  /** Reject the first line of the pending record and read its other lines again as rows. */
+  private rejectAndReread(message: string): void {
     const lines = this.pendingLines;
     const start = this.pendingLine;
     this.pendingText = null;
     this.ledger.read++;
     this.records++;
-    this.ledger.reject(start, 1, 'unbalanced_quote', `a quote opened on this line is not closed within ${Math.min(lines.length, MAX_RECORD_LINES)} lines`, 'close the quoted field or double the quote ("") if it is part of the value');
+    this.ledger.reject(start, 1, 'unbalanced_quote', message, 'close the quoted field or double the quote ("") if it is part of the value');
     const saved = this.lineNo;
     for (let k = 1; k < lines.length; k++) {
       this.lineNo = start + k;

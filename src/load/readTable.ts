@@ -138,21 +138,49 @@ export async function readTable(path: string, ledger: RowLedger, sink: TableSink
 
   const decoder = new StringDecoder('utf8');
   let carry = '';
+  // Bytes of a line longer than lr.lineLimit, being skipped to its end (-1: none).
+  let skipped = -1;
+  /** UTF-8 length of s[from..to) when it may exceed the line limit, else 0 (no count made). */
+  const longBytes = (s: string, from: number, to: number): number => {
+    const limit = lr.lineLimit;
+    if ((to - from) * 3 <= limit) return 0;
+    const bytes = Buffer.byteLength(to - from === s.length ? s : s.slice(from, to), 'utf8');
+    return bytes > limit ? bytes : 0;
+  };
   const consume = (text: string): void => {
     if (firstChunk) {
       firstChunk = false;
       if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
     }
-    let s = carry.length > 0 ? carry + text : text;
     let pos = 0;
+    if (skipped >= 0) {
+      const nl = text.indexOf('\n');
+      if (nl === -1) {
+        skipped += Buffer.byteLength(text, 'utf8');
+        return;
+      }
+      lr.longLine(skipped + Buffer.byteLength(text.slice(0, nl), 'utf8'));
+      skipped = -1;
+      pos = nl + 1;
+      if (lr.stop) return;
+    }
+    let s = carry.length > 0 ? carry + text : text;
     let nl = s.indexOf('\n', pos);
     while (nl !== -1 && !lr.stop) {
-      lr.line(s.slice(pos, nl));
+      const long = longBytes(s, pos, nl);
+      if (long > 0) lr.longLine(long);
+      else lr.line(s.slice(pos, nl));
       pos = nl + 1;
       nl = s.indexOf('\n', pos);
     }
     carry = lr.stop ? '' : s.slice(pos);
     s = '';
+    const long = longBytes(carry, 0, carry.length);
+    if (long > 0) {
+      // No line end yet and already too long: skip to the line end instead of keeping it.
+      skipped = long;
+      carry = '';
+    }
   };
 
   let decompressedHeadChecked = !compressed;
@@ -178,7 +206,8 @@ export async function readTable(path: string, ledger: RowLedger, sink: TableSink
   }
   if (!lr.stop) {
     consume(decoder.end());
-    if (carry.length > 0) {
+    if (skipped >= 0) lr.longLine(skipped);
+    else if (carry.length > 0) {
       const last = carry;
       carry = '';
       lr.line(last);
