@@ -9,8 +9,9 @@
  * The new release (targets must be active concepts of it) is `--release-file NEW`, or else the
  * release a recorded check run read whose SHA-256 the worklist's `new_sha256` column gives.
  */
-import { existsSync } from 'node:fs';
-import { UsageError } from '../errors.js';
+import { existsSync, statSync } from 'node:fs';
+import { dirname } from 'node:path';
+import { InputError, UsageError } from '../errors.js';
 import { loadMappings, loadRelease } from '../load/index.js';
 import type { MappingSet, Release } from '../load/types.js';
 import { readWorklist, type Worklist } from '../apply/readWorklist.js';
@@ -81,6 +82,25 @@ export function outputFormat(out: string, given: string | undefined, input: Mapp
   return input;
 }
 
+/** Check, before anything is written, that a file can be written where it is asked for. */
+function checkWritable(flag: string, path: string): void {
+  const dir = dirname(path);
+  if (!existsSync(dir) || !statSync(dir).isDirectory()) {
+    throw new InputError('file_not_found', `${flag} ${path}: the folder ${dir} does not exist`, { location: { file: path }, fix: `create the folder first, or give ${flag} a path in an existing folder` });
+  }
+}
+
+/** Write a file; a file-system error becomes a message with the fix. */
+function writeFile(flag: string, path: string, write: () => void): void {
+  try {
+    write();
+  } catch (err) {
+    const e = err as NodeJS.ErrnoException;
+    if (!e.code) throw err;
+    throw new InputError('file_unreadable', `cannot write ${flag} ${path}: ${e.code} (${e.message})`, { location: { file: path }, fix: 'check the folder and its permissions' });
+  }
+}
+
 /** The state folder apply records decisions in: --state DIR, none with --no-state, else .termdrift/ when it exists. */
 function stateDir(f: ApplyFlags): string | undefined {
   if (f.state === false) return undefined;
@@ -149,11 +169,13 @@ export async function runApplyCommand(worklistPath: string, f: ApplyFlags, io: A
     raw,
   });
   const existingAudit = f.audit ? readAuditLog(f.audit) : undefined;
+  if (f.out !== '-') checkWritable('--out', f.out);
+  if (f.audit) checkWritable('--audit', f.audit);
 
   // Everything is checked: write.
   if (f.out === '-') io.out(text);
-  else writeAtomic(f.out, text, 0o644);
-  if (f.audit) writeAuditLog(f.audit, existingAudit, result.audit);
+  else writeFile('--out', f.out, () => writeAtomic(f.out!, text, 0o644));
+  if (f.audit) writeFile('--audit', f.audit, () => writeAuditLog(f.audit!, existingAudit, result.audit));
   if (store && result.audit.length) {
     const records: DecisionRecord[] = result.audit.map((a) => ({
       local_code: a.local_code,

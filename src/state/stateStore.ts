@@ -220,6 +220,24 @@ export class StateStore {
    * replaces it in place (same inputs, same findings); any other run is added at the end.
    */
   recordRun(run: RunRecord): RunEntry {
+    return this.writing(() => this.recordRunNow(run));
+  }
+
+  /** Run a write; a file-system error (no permission, disk full) becomes an error that says what to do. */
+  private writing<T>(fn: () => T): T {
+    try {
+      return fn();
+    } catch (err) {
+      const e = err as NodeJS.ErrnoException;
+      if (!e.code || err instanceof InputError) throw err;
+      throw new InputError('file_unreadable', `cannot write the state folder ${this.dir}: ${e.code} (${e.message})`, {
+        location: { file: this.dir },
+        fix: 'give --state a folder you can write to, or --no-state to record nothing; the state as it was is intact',
+      });
+    }
+  }
+
+  private recordRunNow(run: RunRecord): RunEntry {
     this.ensureDir();
     const text = serializeRun(run);
     const hash = sha256(text);
@@ -250,6 +268,10 @@ export class StateStore {
    * replaces it (applying the same worklist twice records it once).
    */
   recordDecisions(list: DecisionRecord[]): void {
+    this.writing(() => this.recordDecisionsNow(list));
+  }
+
+  private recordDecisionsNow(list: DecisionRecord[]): void {
     this.ensureDir();
     const key = (d: DecisionRecord) => `${d.local_code}\u0001${d.old_target}\u0001${d.release_sha256}`;
     const incoming = new Set(list.map(key));

@@ -5,6 +5,8 @@
  *   mappings → check r2→r3 again: the accepted and kept mappings are reported as settled.
  * Also: --fail-on and --summary-json for schedulers, --no-state, the demo writing no state, apply
  * writing nothing on a bad worklist, and the FHIR and SSSOM outputs of apply read back.
+ * The tests that run the CLI many times get a generous guard timeout for a loaded machine; no
+ * test here measures speed.
  */
 import { describe, expect, it } from 'vitest';
 import { spawnSync } from 'node:child_process';
@@ -115,7 +117,7 @@ describe('the review cycle over r1, r2 and r3', () => {
     const hj = JSON.parse(cli(cwd, ['history', '--format', 'json', '--code', 'LAB-0401']).out);
     expect(hj.mappings).toHaveLength(1);
     expect(hj.mappings[0].scores).toHaveLength(3);
-  });
+  }, 300_000);
 
   it('leaves settled mappings out of --fail-on', () => {
     const args = ['check', ...releaseArgs('r2', 'r3'), '--mappings', 'mappings-r2.tsv', '--format', 'json', '--fail-on', 'ok', '--summary-json', 'summary.json'];
@@ -130,7 +132,7 @@ describe('the review cycle over r1, r2 and r3', () => {
     expect(noState.fail_on.mappings).toBe(noState.mappings.length);
     expect(noState.history).toBeUndefined();
     expect(noState.mappings.some((m: any) => m.settled)).toBe(false);
-  });
+  }, 300_000);
 });
 
 describe('--fail-on and --summary-json', () => {
@@ -158,7 +160,7 @@ describe('--fail-on and --summary-json', () => {
     const r = cli(cwd, ['check', ...releaseArgs('r1', 'r2'), '--mappings', okOnly, '--no-state', '--fail-on', 'context_changed', '--summary-json', 's.json']);
     expect(r.code).toBe(0);
     expect(JSON.parse(readFileSync(join(cwd, 's.json'), 'utf8')).fail_on).toEqual({ level: 'context_changed', reached: false, mappings: 0 });
-  });
+  }, 300_000);
 
   it('rejects an unknown level with exit 2', () => {
     const r = cli(tempDir(), ['check', demo('release-r1.tsv'), demo('release-r2.tsv'), '--mappings', demo('mappings.tsv'), '--fail-on', 'bad', '--no-state']);
@@ -175,7 +177,7 @@ describe('state only where asked', () => {
     expect(readdirSync(cwd)).toEqual([]);
     expect(cli(cwd, ['demo', '--format', 'json', '--state', 'st']).code).toBe(0);
     expect(existsSync(join(cwd, 'st', 'index.json'))).toBe(true);
-  });
+  }, 300_000);
 });
 
 describe('apply', () => {
@@ -187,6 +189,14 @@ describe('apply', () => {
     const lines = r.err.split('\n').filter((l) => /worklist-bad\.csv:\d+:\d+: /.test(l));
     expect(lines).toHaveLength(10);
     expect(r.err).toMatch(/10 problems; nothing was written/);
+  });
+
+  it('writes nothing when the audit log cannot be written either', () => {
+    const cwd = tempDir();
+    const r = cli(cwd, ['apply', resolve('tests/fixtures/cli/worklist-sssom-r1-r2.csv'), '--mappings', demo('mappings.sssom.tsv'), '--release-file', demo('release-r2.tsv'), '--out', 'm2.sssom.tsv', '--audit', 'no/such/folder/audit.csv', '--no-state']);
+    expect(r.code).toBe(2);
+    expect(r.err).toMatch(/--audit no\/such\/folder\/audit.csv: the folder no\/such\/folder does not exist/);
+    expect(readdirSync(cwd)).toEqual([]);
   });
 
   it('needs the new release: --release-file, or a recorded run that read it', () => {

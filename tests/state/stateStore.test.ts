@@ -90,3 +90,20 @@ describe('StateStore', () => {
     expect(e3?.code).toBe('state_corrupt');
   });
 });
+
+describe('StateStore in a folder it cannot write', () => {
+  it('says so, with the fix, and leaves the state as it was', () => {
+    const dir = tempDir();
+    const store = StateStore.open(dir);
+    store.recordRun(run(sha('1'), sha('2'), [['L1', 'x', 'C1', 'ok', 0.9, 0.9, 0, '']]));
+    const before = readFileSync(join(dir, 'index.json'), 'utf8');
+    // A file where the runs folder should be: writing a run fails the same way for root as for anyone.
+    const blocked = tempDir();
+    writeFileSync(join(blocked, 'runs'), 'not a folder');
+    const err = (() => { try { StateStore.open(blocked).recordRun(run(sha('1'), sha('2'), [])); } catch (e) { return e as TermdriftError; } })();
+    expect(err).toBeInstanceOf(TermdriftError);
+    expect(err?.code).toBe('file_unreadable');
+    expect(err?.fix).toMatch(/--no-state/);
+    expect(readFileSync(join(dir, 'index.json'), 'utf8')).toBe(before);
+  });
+});
