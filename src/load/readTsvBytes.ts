@@ -97,17 +97,37 @@ const HASH_WORKER = `
 const { parentPort } = require('node:worker_threads');
 const { createHash } = require('node:crypto');
 const hash = createHash('sha256');
+const buffers = [];
 parentPort.on('message', (m) => {
   if (m === null) parentPort.postMessage(hash.digest('hex'));
-  else hash.update(new Uint8Array(m.buffer, m.offset, m.length));
+  else if (m.buffer !== undefined) buffers[m.id] = m.buffer;
+  else hash.update(new Uint8Array(buffers[m.id], m.offset, m.length));
 });`;
 
 /**
  * SHA-256 in a worker thread, over blocks backed by a SharedArrayBuffer (nothing is copied).
- * Measured: hashing 670 MB on the main thread took about 0.45 s of its 10 s of CPU.
+ * Measured: hashing 670 MB on the main thread took about 0.45 s of its 10 s of CPU; posting the
+ * SharedArrayBuffer with every 1 MiB read cost more than that (0.8 s), and posting offsets per
+ * read still 0.45 s, so each buffer is posted once and ranges of at least 16 MiB as offsets.
  */
 function workerHasher(): Hasher {
   const worker = new Worker(HASH_WORKER, { eval: true });
+  const ids = new Map<ArrayBufferLike, number>();
+  // Bytes read but not yet posted: one contiguous range of one buffer.
+  let pendingBuffer: ArrayBufferLike | null = null;
+  let pendingOffset = 0;
+  let pendingLength = 0;
+  const flush = () => {
+    if (pendingBuffer === null || pendingLength === 0) return;
+    let id = ids.get(pendingBuffer);
+    if (id === undefined) {
+      id = ids.size;
+      ids.set(pendingBuffer, id);
+      worker.postMessage({ id, buffer: pendingBuffer });
+    }
+    worker.postMessage({ id, offset: pendingOffset, length: pendingLength });
+    pendingLength = 0;
+  };
   const result = new Promise<string>((resolve, reject) => {
     worker.once('message', resolve);
     worker.once('error', reject);
@@ -116,9 +136,17 @@ function workerHasher(): Hasher {
   result.catch(() => {});
   return {
     update(bytes, at, n) {
-      worker.postMessage({ buffer: bytes.buffer, offset: bytes.byteOffset + at, length: n });
+      const offset = bytes.byteOffset + at;
+      if (bytes.buffer !== pendingBuffer || offset !== pendingOffset + pendingLength) {
+        flush();
+        pendingBuffer = bytes.buffer;
+        pendingOffset = offset;
+      }
+      pendingLength += n;
+      if (pendingLength >= 16 * MIB) flush();
     },
     digest() {
+      flush();
       worker.postMessage(null);
       return result;
     },
@@ -187,8 +215,6 @@ class TsvScanner {
   private fast = false;
   /** Bytes from the start of the pending incomplete line known to hold no line end. */
   private noLineEnd = 0;
-  /** Bytes so far of a line longer than the LineReader's lineLimit, skipped to its end (-1: none). */
-  private skipped = -1;
   // A stretch of the current block whose UTF-8 was checked at once.
   private checkedBuf: Buffer | null = null;
   private checkedEnd = 0;
@@ -202,26 +228,13 @@ class TsvScanner {
    */
   scan(buf: Buffer, blockNo: number, pos: number, len: number, final: boolean): number {
     const lr = this.lr;
-    if (this.skipped >= 0) {
-      // Inside a line too long to read: find its end, count it, go on after it.
-      const nl = lineEnd(buf, pos, len);
-      if (nl === -1) {
-        this.skipped += len - pos;
-        if (final) this.endSkip();
-        return len;
-      }
-      this.skipped += nl - pos;
-      this.endSkip();
-      pos = nl + 1;
-      if (lr.stop) return pos;
-    }
     if (this.noLineEnd > 0 && !final) {
       // The line left incomplete last time: look for its end natively before scanning it again,
       // so that a long line is scanned once, not once per read.
       const nl = lineEnd(buf, pos + this.noLineEnd, len);
       if (nl === -1) {
         this.noLineEnd = len - pos;
-        return this.keepOrSkip(pos, len);
+        return pos;
       }
     }
     this.noLineEnd = 0;
@@ -231,7 +244,7 @@ class TsvScanner {
         if (nl === -1) {
           if (!final) {
             this.noLineEnd = len - pos;
-            return this.keepOrSkip(pos, len);
+            return pos;
           }
           nl = len;
         }
@@ -263,7 +276,7 @@ class TsvScanner {
       }
       if (i === len && !final) {
         this.noLineEnd = len - pos;
-        return this.keepOrSkip(pos, len);
+        return pos;
       }
       let e = i;
       if (e > pos && buf[e - 1] === 13) e--;
@@ -278,31 +291,12 @@ class TsvScanner {
     return pos;
   }
 
-  /**
-   * The incomplete line from `pos` is kept for the next read (returns pos) unless it is already
-   * longer than the LineReader's lineLimit: then its bytes are skipped (returns len).
-   */
-  private keepOrSkip(pos: number, len: number): number {
-    if (len - pos <= this.lr.lineLimit) return pos;
-    this.noLineEnd = 0;
-    this.skipped = len - pos;
-    return len;
-  }
-
-  /** Count the line being skipped, if any (at its line end, or at the end of the input). */
-  endSkip(): void {
-    if (this.skipped < 0) return;
-    const bytes = this.skipped;
-    this.skipped = -1;
-    this.lr.longLine(bytes);
-  }
-
   /** One line through the LineReader, as text (its `\r`, if any, included). */
   private slowLine(buf: Buffer, s: number, e: number): void {
     const lr = this.lr;
+    const text = buf.toString('utf8', s, e);
     const hadHeader = lr.headerCount >= 0;
-    if (e - s > lr.lineLimit) lr.longLine(e - s);
-    else lr.line(buf.toString('utf8', s, e));
+    lr.line(text);
     if (!hadHeader && lr.headerCount >= 0) {
       this.start = new Int32Array(lr.headerCount);
       this.end = new Int32Array(lr.headerCount);
@@ -433,7 +427,6 @@ async function readBlocks(path: string, lr: LineReader, scanner: TsvScanner, sin
   }
   if (!lr.stop) {
     if (pos < filled) scanner.scan(block, blockNo, pos, filled, true);
-    scanner.endSkip();
     lr.end();
   }
   // Give back the unused end of a mostly empty last block (records only point below `filled`).
