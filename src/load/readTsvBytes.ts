@@ -215,6 +215,8 @@ class TsvScanner {
   private fast = false;
   /** Bytes from the start of the pending incomplete line known to hold no line end. */
   private noLineEnd = 0;
+  /** Bytes so far of a line longer than the LineReader's lineLimit, skipped to its end (-1: none). */
+  private skipped = -1;
   // A stretch of the current block whose UTF-8 was checked at once.
   private checkedBuf: Buffer | null = null;
   private checkedEnd = 0;
@@ -228,13 +230,26 @@ class TsvScanner {
    */
   scan(buf: Buffer, blockNo: number, pos: number, len: number, final: boolean): number {
     const lr = this.lr;
+    if (this.skipped >= 0) {
+      // Inside a line too long to read: find its end, count it, go on after it.
+      const nl = lineEnd(buf, pos, len);
+      if (nl === -1) {
+        this.skipped += len - pos;
+        if (final) this.endSkip();
+        return len;
+      }
+      this.skipped += nl - pos;
+      this.endSkip();
+      pos = nl + 1;
+      if (lr.stop) return pos;
+    }
     if (this.noLineEnd > 0 && !final) {
       // The line left incomplete last time: look for its end natively before scanning it again,
       // so that a long line is scanned once, not once per read.
       const nl = lineEnd(buf, pos + this.noLineEnd, len);
       if (nl === -1) {
         this.noLineEnd = len - pos;
-        return pos;
+        return this.keepOrSkip(pos, len);
       }
     }
     this.noLineEnd = 0;
@@ -244,7 +259,7 @@ class TsvScanner {
         if (nl === -1) {
           if (!final) {
             this.noLineEnd = len - pos;
-            return pos;
+            return this.keepOrSkip(pos, len);
           }
           nl = len;
         }
@@ -276,7 +291,7 @@ class TsvScanner {
       }
       if (i === len && !final) {
         this.noLineEnd = len - pos;
-        return pos;
+        return this.keepOrSkip(pos, len);
       }
       let e = i;
       if (e > pos && buf[e - 1] === 13) e--;
@@ -291,12 +306,31 @@ class TsvScanner {
     return pos;
   }
 
+  /**
+   * The incomplete line from `pos` is kept for the next read (returns pos) unless it is already
+   * longer than the LineReader's lineLimit: then its bytes are skipped (returns len).
+   */
+  private keepOrSkip(pos: number, len: number): number {
+    if (len - pos <= this.lr.lineLimit) return pos;
+    this.noLineEnd = 0;
+    this.skipped = len - pos;
+    return len;
+  }
+
+  /** Count the line being skipped, if any (at its line end, or at the end of the input). */
+  endSkip(): void {
+    if (this.skipped < 0) return;
+    const bytes = this.skipped;
+    this.skipped = -1;
+    this.lr.longLine(bytes);
+  }
+
   /** One line through the LineReader, as text (its `\r`, if any, included). */
   private slowLine(buf: Buffer, s: number, e: number): void {
     const lr = this.lr;
-    const text = buf.toString('utf8', s, e);
     const hadHeader = lr.headerCount >= 0;
-    lr.line(text);
+    if (e - s > lr.lineLimit) lr.longLine(e - s);
+    else lr.line(buf.toString('utf8', s, e));
     if (!hadHeader && lr.headerCount >= 0) {
       this.start = new Int32Array(lr.headerCount);
       this.end = new Int32Array(lr.headerCount);
@@ -427,6 +461,7 @@ async function readBlocks(path: string, lr: LineReader, scanner: TsvScanner, sin
   }
   if (!lr.stop) {
     if (pos < filled) scanner.scan(block, blockNo, pos, filled, true);
+    scanner.endSkip();
     lr.end();
   }
   // Give back the unused end of a mostly empty last block (records only point below `filled`).
