@@ -9,8 +9,8 @@
  * (releaseBytes.ts); term_type, status, term_status, category and language through small caches
  * of byte sequences already seen. A concept id is decoded to a string once, when the concept is
  * first seen; no `Map` keyed by id strings is built while loading (measured in
- * docs/BENCHMARKS.md, "Loading": on two releases of 4.1 M rows such a Map cost 4 to 5 s of CPU,
- * a hash table over the bytes about 2 s, the order check next to nothing).
+ * docs/BENCHMARKS.md, "Loading": on two releases of 4.1 M rows such a Map cost 3.5 to 5.8 s of
+ * CPU, a hash table over the bytes 1.2 to 2.6 s, the order check 0.15 s in a CPU profile).
  *
  * `row` is the string path (CSV, and any TSV line the byte reader does not take). `rowBytes`
  * hands a record to `row` whenever it is not the common case — an empty or padded value, an
