@@ -5,6 +5,7 @@
  */
 import { loadHierarchy, loadHistory, loadMappings, loadRelease } from './load/index.js';
 import type { MappingSet } from './load/types.js';
+import { canonicalHierarchy, canonicalHistory } from './load/canonicalOrder.js';
 import { rescoreMappings, type RescoreOptions } from './rescore/rescoreMappings.js';
 import { rankByImpact, groupByChange } from './rank/rankByImpact.js';
 import { VERDICTS, type Verdict } from './rescore/types.js';
@@ -34,6 +35,8 @@ export interface DiffOptions {
   thresholds?: Partial<Thresholds>;
   /** ISO time written into the report; omitted when not given (reports stay reproducible). */
   now?: string;
+  /** Told the bytes read of each input file as it loads (the CLI's progress bar). */
+  onProgress?: (path: string, bytesRead: number, fileSize: number) => void;
 }
 
 export interface DiffInputs {
@@ -46,12 +49,14 @@ export interface DiffInputs {
 
 /** Load every input of a diff; the two releases are read concurrently. */
 export async function loadDiffInputs(o: DiffOptions): Promise<DiffInputs> {
+  const onProgress = (path: string) => (o.onProgress ? (read: number, size: number) => o.onProgress!(path, read, size) : undefined);
   const [oldR, newR, oh, nh, hist] = await Promise.all([
-    loadRelease(o.old, { label: o.oldLabel, columns: o.columns }),
-    loadRelease(o.new, { label: o.newLabel, columns: o.columns }),
-    o.oldHierarchy ? loadHierarchy(o.oldHierarchy) : undefined,
-    o.newHierarchy ? loadHierarchy(o.newHierarchy) : undefined,
-    o.history ? loadHistory(o.history) : undefined,
+    loadRelease(o.old, { label: o.oldLabel, columns: o.columns, order: 'canonical', onProgress: onProgress(o.old) }),
+    loadRelease(o.new, { label: o.newLabel, columns: o.columns, order: 'canonical', onProgress: onProgress(o.new) }),
+    // Canonical order (load/canonicalOrder.ts): the report does not depend on the row order.
+    o.oldHierarchy ? loadHierarchy(o.oldHierarchy, { onProgress: onProgress(o.oldHierarchy) }).then(canonicalHierarchy) : undefined,
+    o.newHierarchy ? loadHierarchy(o.newHierarchy, { onProgress: onProgress(o.newHierarchy) }).then(canonicalHierarchy) : undefined,
+    o.history ? loadHistory(o.history, { onProgress: onProgress(o.history) }).then(canonicalHistory) : undefined,
   ]);
   return { old: oldR, new: newR, oldHierarchy: oh, newHierarchy: nh, history: hist };
 }
@@ -150,7 +155,7 @@ export function checkReleases(inputs: DiffInputs, mappings: MappingSet, options:
 
 /** Load, diff and re-score. */
 export async function runCheck(options: CheckOptions): Promise<{ report: CheckReport; context: DiffContext; inputs: DiffInputs; mappings: MappingSet }> {
-  const [inputs, mappings] = await Promise.all([loadDiffInputs(options), loadMappings(options.mappings, {})]);
+  const [inputs, mappings] = await Promise.all([loadDiffInputs(options), loadMappings(options.mappings, { onProgress: options.onProgress && ((r, s) => options.onProgress!(options.mappings, r, s)) })]);
   const store = options.state !== undefined ? StateStore.open(options.state) : undefined;
   const { report, context } = checkReleases(inputs, mappings, { ...options, decisions: store?.decisions() });
   if (store) {

@@ -14,6 +14,8 @@ import { runApplyCommand } from './applyCommand.js';
 import { runHistoryCommand } from './historyCommand.js';
 import { FAIL_LEVELS } from '../rank/failOn.js';
 import { VERSION } from '../version.js';
+import { guardMemory, inputFilesOf, RanInChild } from './heap.js';
+import { createProgress, SILENT, type Progress } from './progress.js';
 
 const out = (s: string) => process.stdout.write(s.endsWith('\n') ? s : s + '\n');
 
@@ -23,14 +25,16 @@ function action<A extends unknown[]>(fn: (...args: A) => Promise<number>) {
   };
 }
 
-export function buildProgram(): Command {
+export function buildProgram(progress: Progress = SILENT): Command {
   const program = new Command();
   program
     .name('termdrift')
     .description('Compare two releases of a terminology, find structural changes, re-score local mappings and report by impact.')
     .version(VERSION)
     .showHelpAfterError('(run with --help for the usage)')
-    .exitOverride();
+    .exitOverride()
+    // Before a command reads its inputs: enough memory for them, or a clear stop (cli/heap.ts).
+    .hook('preAction', (_program, command) => guardMemory(inputFilesOf(command.name(), command.args, command.opts())));
 
   program
     .command('validate')
@@ -39,9 +43,9 @@ export function buildProgram(): Command {
     .requiredOption('--kind <kind>', 'release | mapping | hierarchy | history')
     .option('--columns <list>', 'header names of our columns, e.g. concept_id=CODE,term=STR')
     .option('--format <format>', 'text | json', 'text')
-    .action(action((file: string, opts) => runValidate(file, opts, out)));
+    .action(action((file: string, opts) => runValidate(file, opts, out, progress)));
 
-  const io: Io = { out, isTTY: Boolean(process.stdout.isTTY) };
+  const io: Io = { out, isTTY: Boolean(process.stdout.isTTY), progress };
   const releaseOptions = (cmd: Command) =>
     cmd
       .option('--old-hierarchy <file>', 'concept_id,parent_id table of the old release')
@@ -132,10 +136,16 @@ export function buildProgram(): Command {
 }
 
 export async function main(argv: string[]): Promise<void> {
-  const program = buildProgram();
+  const progress = createProgress();
+  const program = buildProgram(progress);
   try {
     await program.parseAsync(argv);
   } catch (err) {
+    progress.stop();
+    if (err instanceof RanInChild) {
+      process.exitCode = err.exitCode;
+      return;
+    }
     if (err instanceof CommanderError) {
       process.exitCode = err.exitCode === 0 ? EXIT.ok : EXIT.badInput;
       return;
@@ -149,6 +159,8 @@ export async function main(argv: string[]): Promise<void> {
     process.stderr.write(`termdrift: internal error: ${e?.message ?? String(err)}\n  this is a bug in termdrift; please report it with the command you ran\n`);
     if (process.env.TERMDRIFT_DEBUG) process.stderr.write(`${e?.stack}\n`);
     process.exitCode = 70;
+  } finally {
+    progress.stop();
   }
 }
 

@@ -14,6 +14,7 @@ import { exitCodeFor, type ExitCode } from './exitCode.js';
 import { parseFailOn } from '../rank/failOn.js';
 import { writeAtomic } from '../state/atomicWrite.js';
 import { DEFAULT_STATE_DIR } from '../state/stateStore.js';
+import type { Progress } from './progress.js';
 
 export interface ReportFlags {
   oldHierarchy?: string;
@@ -83,6 +84,8 @@ export interface Io {
   out: (s: string) => void;
   /** Is standard output a terminal (for colour)? */
   isTTY: boolean;
+  /** Progress on standard error for long runs (cli/progress.ts); none when absent. */
+  progress?: Progress;
 }
 
 function useColor(f: ReportFlags, io: Io): boolean {
@@ -97,7 +100,8 @@ function emit(text: string, f: ReportFlags, io: Io): void {
 
 export async function runDiffCommand(oldPath: string, newPath: string, f: ReportFlags, io: Io): Promise<ExitCode> {
   const format = parseFormat(f.format, DIFF_FORMATS);
-  const { report } = await runDiff(diffOptions(oldPath, newPath, f));
+  const { report } = await runDiff({ ...diffOptions(oldPath, newPath, f), onProgress: io.progress?.file });
+  io.progress?.phase('writing the report');
   emit(renderReport(format, report, { color: useColor(f, io), limit: parseLimit(f.limit), verdicts: parseVerdicts(f.verdict) }), f, io);
   return exitCodeFor({});
 }
@@ -109,7 +113,8 @@ export async function runCheckCommand(oldPath: string, newPath: string, f: Repor
   // check keeps its history in .termdrift/ unless told otherwise (docs/STATE.md).
   const state = f.state === false ? undefined : (f.state ?? DEFAULT_STATE_DIR);
   const options: CheckOptions = { ...diffOptions(oldPath, newPath, f), mappings: f.mappings, failOn, state };
-  const { report } = await runCheck(options);
+  const { report } = await runCheck({ ...options, onProgress: io.progress?.file });
+  io.progress?.phase('writing the report');
   emit(renderReport(format, report, { color: useColor(f, io), limit: parseLimit(f.limit), verdicts: parseVerdicts(f.verdict) }), f, io);
   if (f.summaryJson) {
     const summary = {

@@ -5,9 +5,10 @@ import { RELEASE_COLUMNS } from '../load/loadRelease.js';
 import { MAPPING_COLUMNS } from '../load/loadMappings.js';
 import { HIERARCHY_COLUMNS } from '../load/loadHierarchy.js';
 import { HISTORY_COLUMNS } from '../load/loadHistory.js';
-import { UsageError } from '../errors.js';
+import { TermdriftError, UsageError } from '../errors.js';
 import { formatAccounting, formatDiagnostic } from '../render/diagnostics.js';
 import { exitCodeFor, type ExitCode } from './exitCode.js';
+import { SILENT, type Progress } from './progress.js';
 
 export const COLUMNS_BY_KIND: Record<TableKind, readonly { name: string }[]> = {
   release: RELEASE_COLUMNS,
@@ -29,10 +30,20 @@ export interface ValidateOptions {
   format?: string;
 }
 
-export async function runValidate(file: string, opts: ValidateOptions, out: (s: string) => void): Promise<ExitCode> {
+export async function runValidate(file: string, opts: ValidateOptions, out: (s: string) => void, progress: Progress = SILENT): Promise<ExitCode> {
   const kind = parseKind(opts.kind);
   const columns = parseColumnsOption(opts.columns, COLUMNS_BY_KIND[kind].map((c) => c.name));
-  const loaded = await loadAny(kind, file, columns);
+  let loaded;
+  try {
+    loaded = await loadAny(kind, file, columns, (read, size) => progress.file(file, read, size));
+  } catch (err) {
+    // With --format json a whole-file error is also printed as data (its stable code, where,
+    // the fix) on standard output; the message on standard error and exit 2 are as always.
+    if (opts.format === 'json' && err instanceof TermdriftError) {
+      out(JSON.stringify({ file, kind, error: { code: err.code, message: err.message, location: err.location, fix: err.fix } }, null, 2));
+    }
+    throw err;
+  }
   if (opts.format === 'json') {
     out(JSON.stringify({ file, kind, sha256: loaded.sha256, accounting: loaded.accounting, diagnostics: loaded.diagnostics }, null, 2));
   } else {

@@ -4,6 +4,7 @@ import { loadMappings } from './loadMappings.js';
 import { loadHierarchy } from './loadHierarchy.js';
 import { loadHistory } from './loadHistory.js';
 import type { ColumnRenames } from './columns.js';
+import type { ProgressCallback } from './readTable.js';
 import type { Loaded, TableKind } from './types.js';
 
 export { loadRelease, loadMappings, loadHierarchy, loadHistory };
@@ -13,15 +14,15 @@ export { termTextAt, termIdAt, termTextEquals, termTextComparer, conceptIndexOf,
 export const TABLE_KINDS: readonly TableKind[] = ['release', 'mapping', 'hierarchy', 'history'];
 
 /** Load a file of the given kind; every kind's result carries accounting and diagnostics. */
-export async function loadAny(kind: TableKind, path: string, columns?: ColumnRenames): Promise<Loaded> {
+export async function loadAny(kind: TableKind, path: string, columns?: ColumnRenames, onProgress?: ProgressCallback): Promise<Loaded> {
   switch (kind) {
     case 'release':
-      return loadRelease(path, { columns });
+      return loadRelease(path, { columns, onProgress });
     case 'mapping':
-      return loadMappings(path, { columns });
+      return loadMappings(path, { columns, onProgress });
     case 'hierarchy':
-      return loadHierarchy(path, { columns });
+      return loadHierarchy(path, { columns, onProgress });
     case 'history':
-      return loadHistory(path, { columns });
+      return loadHistory(path, { columns, onProgress });
   }
 }

@@ -4,7 +4,7 @@
  * cannot be its own parent). Longer cycles are found later, where the hierarchy is walked.
  */
 import { RowLedger, quoteValue } from './ledger.js';
-import { readTable } from './readTable.js';
+import { readTable, type ProgressCallback } from './readTable.js';
 import { resolveColumns, type ColumnRenames } from './columns.js';
 import { clean } from './growable.js';
 import type { Hierarchy } from './types.js';
@@ -14,7 +14,7 @@ export const HIERARCHY_COLUMNS = [
   { name: 'parent_id', required: true },
 ] as const;
 
-export async function loadHierarchy(path: string, options: { columns?: ColumnRenames } = {}): Promise<Hierarchy> {
+export async function loadHierarchy(path: string, options: { columns?: ColumnRenames; onProgress?: ProgressCallback } = {}): Promise<Hierarchy> {
   const ledger = new RowLedger(path);
   const parents = new Map<string, string[]>();
   const firstLines = new Map<string, number[]>();
@@ -47,6 +47,6 @@ export async function loadHierarchy(path: string, options: { columns?: ColumnRen
       }
       edgeCount++;
     },
-  });
+  }, { onProgress: options.onProgress });
   return { path, sha256: info.sha256, accounting: ledger.finish(), diagnostics: ledger.diagnostics, parents, edgeCount };
 }

@@ -5,7 +5,7 @@
  * data and reported by the change classifier, which is where they matter.
  */
 import { RowLedger, quoteValue } from './ledger.js';
-import { readTable } from './readTable.js';
+import { readTable, type ProgressCallback } from './readTable.js';
 import { resolveColumns, type ColumnRenames } from './columns.js';
 import { clean } from './growable.js';
 import type { HistoryRow, HistoryTable } from './types.js';
@@ -41,7 +41,7 @@ export function normalizeRelation(value: string): string {
   }
 }
 
-export async function loadHistory(path: string, options: { columns?: ColumnRenames } = {}): Promise<HistoryTable> {
+export async function loadHistory(path: string, options: { columns?: ColumnRenames; onProgress?: ProgressCallback } = {}): Promise<HistoryTable> {
   const ledger = new RowLedger(path);
   const rows: HistoryRow[] = [];
   const byOld = new Map<string, HistoryRow[]>();
@@ -69,6 +69,6 @@ export async function loadHistory(path: string, options: { columns?: ColumnRenam
       if (list) list.push(row);
       else byOld.set(oldId, [row]);
     },
-  });
+  }, { onProgress: options.onProgress });
   return { path, sha256: info.sha256, accounting: ledger.finish(), diagnostics: ledger.diagnostics, rows, byOld };
 }

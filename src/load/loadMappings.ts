@@ -11,7 +11,7 @@
  */
 import { parse as parseYaml } from 'yaml';
 import { RowLedger, quoteValue } from './ledger.js';
-import { readTable } from './readTable.js';
+import { readTable, type ProgressCallback } from './readTable.js';
 import { resolveColumns, type ColumnRenames, type ColumnSpec } from './columns.js';
 import { clean } from './growable.js';
 import { InputError } from '../errors.js';
@@ -73,6 +73,8 @@ export function parseRelation(value: string): MappingRelation | undefined {
 
 export interface LoadMappingsOptions {
   columns?: ColumnRenames;
+  /** Bytes read so far of the file's size (readTable's onProgress). */
+  onProgress?: ProgressCallback;
 }
 
 /** Parse a `#`-prefixed YAML block (SSSOM): strip the `#` and the common indentation. */
@@ -179,7 +181,7 @@ export async function loadMappings(path: string, options: LoadMappingsOptions = 
         extra: extraValues,
       });
     },
-  }, { metadata: true });
+  }, { metadata: true, onProgress: options.onProgress });
   return {
     path,
     sha256: info.sha256,

@@ -14,10 +14,11 @@
  */
 import { basename } from 'node:path';
 import { RowLedger, quoteValue } from './ledger.js';
-import { delimiterFromName, readTable } from './readTable.js';
+import { delimiterFromName, readTable, type ProgressCallback } from './readTable.js';
 import { readTsvBytes } from './readTsvBytes.js';
 import { ReleaseBuilder } from './releaseBuilder.js';
 import { ReleaseBytes, attachReleaseBytes } from './releaseBytes.js';
+import { applyCanonicalOrder } from './canonicalOrder.js';
 import type { ColumnRenames } from './columns.js';
 import { PREFERRED, SYNONYM, type Release } from './types.js';
 
@@ -36,6 +37,14 @@ export interface LoadReleaseOptions {
   blockSize?: number;
   /** Bytes per read of the byte reader. */
   readSize?: number;
+  /**
+   * `file` (default): concepts and terms numbered in first-seen order; `canonical`: renumbered
+   * after the row checks so that the order of the file's rows does not matter (canonicalOrder.ts;
+   * the pipeline loads releases this way).
+   */
+  order?: 'file' | 'canonical';
+  /** Bytes read so far of the file's size, at most once per MiB (readTable's onProgress). */
+  onProgress?: ProgressCallback;
 }
 
 /** Label of a release from its file name: `release-r1.tsv.gz` → `release-r1`. */
@@ -48,8 +57,8 @@ export async function loadRelease(path: string, options: LoadReleaseOptions = {}
   const blocks: Buffer[] = [];
   const builder = new ReleaseBuilder(path, ledger, options.columns, blocks);
   const info = options.reader === 'strings' || delimiterFromName(path) === ','
-    ? await readTable(path, ledger, builder)
-    : await readTsvBytes(path, ledger, builder, { blocks, blockSize: options.blockSize, readSize: options.readSize });
+    ? await readTable(path, ledger, builder, { onProgress: options.onProgress })
+    : await readTsvBytes(path, ledger, builder, { blocks, blockSize: options.blockSize, readSize: options.readSize, onProgress: options.onProgress });
   const b = builder.finish();
   const bytes = new ReleaseBytes({
     blocks, termBlock: b.termBlock, textStart: b.textStart, textEnd: b.textEnd, idStart: b.idStart, idEnd: b.idEnd,
@@ -82,6 +91,7 @@ export async function loadRelease(path: string, options: LoadReleaseOptions = {}
   buildConceptTerms(release);
   const removed = checkConceptTerms(release, bytes, ledger, b.typeColumn, b.termColumn);
   if (removed > 0) compactTerms(release, bytes);
+  if (options.order === 'canonical') applyCanonicalOrder(release, bytes, buildConceptTerms);
   release.accounting = ledger.finish();
   release.diagnostics = ledger.diagnostics;
   return release;

@@ -31,6 +31,27 @@ export interface ReadTableOptions {
   maxFieldLength?: number;
   /** Stop after this many records (for sniffing). */
   maxRecords?: number;
+  /**
+   * Told how many bytes of the file (as stored: compressed bytes for .gz) have been read, out of
+   * its size: at most once per MiB, and once at the end (the CLI's progress bar, cli/progress.ts).
+   */
+  onProgress?: ProgressCallback;
+}
+
+export type ProgressCallback = (bytesRead: number, fileSize: number) => void;
+
+/** A counter of bytes read that calls `onProgress` each time another MiB has come in. */
+export function progressCounter(fileSize: number, onProgress: ProgressCallback | undefined): ((n: number) => void) | undefined {
+  if (!onProgress) return undefined;
+  let read = 0;
+  let next = 1 << 20;
+  return (n) => {
+    read += n;
+    if (read >= next || read >= fileSize) {
+      next = read + (1 << 20);
+      onProgress(read, fileSize);
+    }
+  };
 }
 
 export interface TableInfo {
@@ -125,7 +146,11 @@ export async function readTable(path: string, ledger: RowLedger, sink: TableSink
 
   const hash = createHash('sha256');
   const raw = createReadStream(path, { highWaterMark: 1 << 20 });
-  raw.on('data', (chunk) => hash.update(chunk as Buffer));
+  const counted = progressCounter(options.onProgress ? (await fsp.stat(path)).size : 0, options.onProgress);
+  raw.on('data', (chunk) => {
+    hash.update(chunk as Buffer);
+    counted?.((chunk as Buffer).length);
+  });
   let source: NodeJS.ReadableStream = raw;
   if (compressed) {
     const gunzip = createGunzip();

@@ -32,7 +32,7 @@ import { Worker } from 'node:worker_threads';
 import { InputError } from '../errors.js';
 import type { RowLedger } from './ledger.js';
 import { LineReader, type TableSink } from './lineReader.js';
-import { checkFile, checkTextBytes, delimiterFromName, finishInfo, readHead, DEFAULT_MAX_FIELD, type ReadTableOptions, type TableInfo } from './readTable.js';
+import { checkFile, checkTextBytes, delimiterFromName, finishInfo, readHead, progressCounter, DEFAULT_MAX_FIELD, type ReadTableOptions, type TableInfo } from './readTable.js';
 
 /** A sink that also takes plain TSV records as byte ranges. */
 export interface ByteTableSink extends TableSink {
@@ -154,6 +154,12 @@ function workerHasher(): Hasher {
       await worker.terminate();
     },
   };
+}
+
+/** The hasher sees every byte read as stored: count them there for the progress callback. */
+function counting(hasher: Hasher, count: ((n: number) => void) | undefined): Hasher {
+  if (!count) return hasher;
+  return { ...hasher, update: (bytes, at, n) => { hasher.update(bytes, at, n); count(n); } };
 }
 
 function plainSource(fh: fsp.FileHandle, hasher: Hasher): ByteSource {
@@ -383,7 +389,7 @@ export async function readTsvBytes(path: string, ledger: RowLedger, sink: ByteTa
   const nextSize = options.blockSize ?? GROW_BLOCK;
   const firstSize = options.blockSize ?? (compressed ? Math.min(GROW_BLOCK, Math.max(1 << 16, fileSize * 4)) : Math.min(MAX_BLOCK, fileSize + 1));
   const shared = !compressed && fileSize >= (options.hashInThreadFrom ?? HASH_IN_WORKER_FROM);
-  const hasher = shared ? workerHasher() : inlineHasher();
+  const hasher = counting(shared ? workerHasher() : inlineHasher(), progressCounter(fileSize, options.onProgress));
   try {
     const allocBlock = (size: number) => (shared ? Buffer.from(new SharedArrayBuffer(size)) : Buffer.allocUnsafeSlow(size));
     const source = compressed ? gzipSource(path, hasher) : plainSource(await fsp.open(path, 'r'), hasher);

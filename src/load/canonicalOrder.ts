@@ -1,0 +1,176 @@
+/**
+ * canonicalOrder: renumber a loaded release so that nothing downstream depends on the order of
+ * the file's rows.
+ *
+ * A loader numbers concepts and terms in first-seen order, and every later stage inherits it:
+ * the scorer samples concepts and terms by index (with a seeded generator, so a shuffled file
+ * gets other samples and other scores), and evidence lists terms in index order. Given the same
+ * rows in another order, a report must not change (docs/RELIABILITY.md, "Reproducibility").
+ * After the row checks (which keep "the first in the file wins" for duplicates and a second
+ * preferred term), `applyCanonicalOrder` renumbers concepts by identifier (UTF-16 code unit
+ * order) and the terms of each concept by: preferred first, then synonyms, then other term types
+ * by name; then term_id, text (UTF-8 bytes, so code point order), language and term status.
+ * Concept and term lines (for messages) move with their concept and term. `canonicalHierarchy`
+ * and `canonicalHistory` do the same for the other tables of a diff.
+ *
+ * Cost: one pass to see whether the release is in this order already (the usual case for
+ * published files and for termdrift's generator, which are sorted by identifier), else a sort of
+ * the concept ids, a counting sort of the terms by concept and a sort within each concept (insertion
+ * sort for the usual few terms), then one permutation of every column. No string is made per term.
+ */
+import { rehashConcepts, type ReleaseBytes } from './releaseBytes.js';
+import { PREFERRED, SYNONYM, type Hierarchy, type HistoryRow, type HistoryTable, type Release } from './types.js';
+
+/** Compare buf a[as..ae) with b[bs..be) as unsigned bytes. */
+function compareBytes(a: Uint8Array, as: number, ae: number, b: Uint8Array, bs: number, be: number): number {
+  const n = Math.min(ae - as, be - bs);
+  for (let i = 0; i < n; i++) {
+    const d = a[as + i] - b[bs + i];
+    if (d !== 0) return d;
+  }
+  return ae - as - (be - bs);
+}
+
+const cmpStrings = (a: string, b: string) => (a < b ? -1 : a > b ? 1 : 0);
+
+/** Compare terms t and u of the same concept in the canonical order. */
+function termComparer(r: Release, bytes: ReleaseBytes): (t: number, u: number) => number {
+  const { termType, termTypes, termLanguage, languages, termStatus } = r;
+  const { blocks, termBlock, textStart, textEnd, idStart, idEnd } = bytes;
+  const typeRank = (code: number) => (code === PREFERRED ? 0 : code === SYNONYM ? 1 : 2);
+  return (t, u) => {
+    const ta = termType[t];
+    const tb = termType[u];
+    if (ta !== tb) {
+      const d = typeRank(ta) - typeRank(tb);
+      if (d !== 0) return d;
+      return cmpStrings(termTypes[ta], termTypes[tb]);
+    }
+    const ba = blocks[termBlock[t]];
+    const bb = blocks[termBlock[u]];
+    let d = compareBytes(ba, idStart[t], idEnd[t], bb, idStart[u], idEnd[u]);
+    if (d !== 0) return d;
+    d = compareBytes(ba, textStart[t], textEnd[t], bb, textStart[u], textEnd[u]);
+    if (d !== 0) return d;
+    const la = termLanguage[t];
+    const lb = termLanguage[u];
+    if (la !== lb) return la < 0 ? -1 : lb < 0 ? 1 : cmpStrings(languages[la], languages[lb]);
+    return termStatus[t] - termStatus[u];
+  };
+}
+
+/** Is the release in canonical order: concepts by id, terms grouped by concept and sorted? */
+export function isCanonical(r: Release, bytes: ReleaseBytes): boolean {
+  const ids = r.conceptIds;
+  for (let c = 1; c < r.conceptCount; c++) if (!(ids[c - 1] < ids[c])) return false;
+  const concept = r.termConcept;
+  const cmp = termComparer(r, bytes);
+  for (let t = 1; t < r.termCount; t++) {
+    const a = concept[t - 1];
+    const b = concept[t];
+    if (b < a || (a === b && cmp(t - 1, t) > 0)) return false;
+  }
+  return true;
+}
+
+function permute<T extends Int32Array | Uint8Array>(a: T, order: Int32Array): T {
+  const out = new (a.constructor as new (n: number) => T)(order.length);
+  for (let i = 0; i < order.length; i++) out[i] = a[order[i]];
+  return out;
+}
+
+/**
+ * Renumber `r` (and its byte storage) in canonical order, in place. Call before any lazy
+ * property (termText, termId, conceptIndex) is read; rebuilds conceptTermStart/conceptTerms
+ * with `rebuildIndex`. Returns false when the release was in canonical order already.
+ */
+export function applyCanonicalOrder(r: Release, bytes: ReleaseBytes, rebuildIndex: (r: Release) => void): boolean {
+  if (isCanonical(r, bytes)) return false;
+  const n = r.conceptCount;
+  const ids = r.conceptIds;
+
+  // Concepts by id; newOf[old] = new index.
+  const conceptOrder = Int32Array.from({ length: n }, (_, c) => c).sort((a, b) => cmpStrings(ids[a], ids[b]));
+  const newOf = new Int32Array(n);
+  for (let k = 0; k < n; k++) newOf[conceptOrder[k]] = k;
+
+  // Terms: counting sort by new concept, then insertion sort within each concept.
+  const m = r.termCount;
+  const start = new Int32Array(n + 1);
+  for (let t = 0; t < m; t++) start[newOf[r.termConcept[t]] + 1]++;
+  for (let c = 0; c < n; c++) start[c + 1] += start[c];
+  const fill = start.slice(0, n);
+  const termOrder = new Int32Array(m);
+  for (let t = 0; t < m; t++) termOrder[fill[newOf[r.termConcept[t]]]++] = t;
+  const cmp = termComparer(r, bytes);
+  for (let c = 0; c < n; c++) {
+    if (start[c + 1] - start[c] > 16) {
+      // A concept with many terms: a merge sort, not the insertion sort's n².
+      termOrder.subarray(start[c], start[c + 1]).set(Array.from(termOrder.subarray(start[c], start[c + 1])).sort(cmp));
+      continue;
+    }
+    for (let i = start[c] + 1; i < start[c + 1]; i++) {
+      const t = termOrder[i];
+      let j = i - 1;
+      while (j >= start[c] && cmp(termOrder[j], t) > 0) {
+        termOrder[j + 1] = termOrder[j];
+        j--;
+      }
+      termOrder[j + 1] = t;
+    }
+  }
+
+  // Concept columns (the id list is permuted in place: the byte storage holds the same array).
+  const sortedIds = Array.from(conceptOrder, (c) => ids[c]);
+  for (let c = 0; c < n; c++) ids[c] = sortedIds[c];
+  r.conceptStatus = permute(r.conceptStatus, conceptOrder);
+  r.conceptCategory = permute(r.conceptCategory, conceptOrder);
+  r.conceptLine = permute(r.conceptLine, conceptOrder);
+  const table = bytes.concepts;
+  table.block = permute(table.block, conceptOrder);
+  table.start = permute(table.start, conceptOrder);
+  table.end = permute(table.end, conceptOrder);
+  table.hash = permute(table.hash, conceptOrder);
+  table.table = rehashConcepts(table.hash, n, table.table.length);
+
+  // Term columns.
+  const concept = new Int32Array(m);
+  for (let i = 0; i < m; i++) concept[i] = newOf[r.termConcept[termOrder[i]]];
+  r.termConcept = concept;
+  r.termType = permute(r.termType, termOrder);
+  r.termLanguage = permute(r.termLanguage, termOrder);
+  r.termStatus = permute(r.termStatus, termOrder);
+  r.termLine = permute(r.termLine, termOrder);
+  bytes.termBlock = permute(bytes.termBlock, termOrder);
+  bytes.textStart = permute(bytes.textStart, termOrder);
+  bytes.textEnd = permute(bytes.textEnd, termOrder);
+  bytes.idStart = permute(bytes.idStart, termOrder);
+  bytes.idEnd = permute(bytes.idEnd, termOrder);
+  bytes.textCache = undefined;
+  bytes.idCache = undefined;
+  bytes.indexCache = undefined;
+  rebuildIndex(r);
+  return true;
+}
+
+/**
+ * The same hierarchy with its children in identifier order and each child's parents sorted:
+ * its walks (ancestors, neighbours, the scorer's context) no longer follow the file's row order.
+ */
+export function canonicalHierarchy(h: Hierarchy): Hierarchy {
+  const parents = new Map<string, string[]>();
+  for (const child of [...h.parents.keys()].sort(cmpStrings)) parents.set(child, [...h.parents.get(child)!].sort(cmpStrings));
+  return { ...h, parents };
+}
+
+/** The same history table with its rows sorted by old id, relation, new id (byOld likewise). */
+export function canonicalHistory(h: HistoryTable): HistoryTable {
+  const rows = [...h.rows].sort((a, b) => cmpStrings(a.oldId, b.oldId) || cmpStrings(a.relation, b.relation) || cmpStrings(a.newId, b.newId));
+  const byOld = new Map<string, HistoryRow[]>();
+  for (const row of rows) {
+    const list = byOld.get(row.oldId);
+    if (list) list.push(row);
+    else byOld.set(row.oldId, [row]);
+  }
+  return { ...h, rows, byOld };
+}
