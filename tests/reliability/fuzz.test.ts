@@ -20,6 +20,8 @@ import { tempDir } from '../helpers/files.js';
 import { checkInput } from './inputCheck.js';
 
 const RUNS = Number(process.env.FUZZ_RUNS ?? 150);
+/** Per test: room for the by-hand runs of thousands of cases (a release case loads four times). */
+const TIMEOUT = Math.max(60_000, RUNS * 100);
 
 function demoHead(file: string, lines: number): Buffer {
   return Buffer.from(readFileSync(join('demo-data', file), 'utf8').split('\n').slice(0, lines).join('\n') + '\n');
@@ -99,7 +101,7 @@ describe('fuzzing the readers (fast-check)', () => {
       }),
       { numRuns: RUNS },
     );
-  });
+  }, TIMEOUT);
 
   it.each([
     ['release', 'random.tsv'],
@@ -119,7 +121,7 @@ describe('fuzzing the readers (fast-check)', () => {
       }),
       { numRuns: RUNS },
     );
-  });
+  }, TIMEOUT);
 
   it('gzip: a valid compressed release, truncated or damaged anywhere', async () => {
     const { gzipSync } = await import('node:zlib');
@@ -131,5 +133,5 @@ describe('fuzzing the readers (fast-check)', () => {
       }),
       { numRuns: Math.ceil(RUNS / 3) },
     );
-  });
+  }, TIMEOUT);
 });
