@@ -18,7 +18,7 @@
  * the concept ids, a counting sort of the terms by concept and a sort within each concept (insertion
  * sort for the usual few terms), then one permutation of every column. No string is made per term.
  */
-import { rehashConcepts, type ReleaseBytes } from './releaseBytes.js';
+import { hashBytes, rehashConcepts, type ReleaseBytes } from './releaseBytes.js';
 import { PREFERRED, SYNONYM, type Hierarchy, type HistoryRow, type HistoryTable, type Release } from './types.js';
 
 /** Compare buf a[as..ae) with b[bs..be) as unsigned bytes. */
@@ -131,7 +131,18 @@ export function applyCanonicalOrder(r: Release, bytes: ReleaseBytes, rebuildInde
   table.start = permute(table.start, conceptOrder);
   table.end = permute(table.end, conceptOrder);
   table.hash = permute(table.hash, conceptOrder);
-  table.table = rehashConcepts(table.hash, n, table.table.length);
+  // The renumbered ids are usually still in byte order (a file sorted by concept whose terms
+  // were not): then lookups stay binary searches. Otherwise (or when the file was unsorted) the
+  // hash table is rebuilt over hashes of every id; a sorted table never computed them.
+  let byteSorted = true;
+  for (let c = 1; c < n && byteSorted; c++) {
+    byteSorted = compareBytes(table.blocks[table.block[c - 1]], table.start[c - 1], table.end[c - 1], table.blocks[table.block[c]], table.start[c], table.end[c]) < 0;
+  }
+  if (!byteSorted) {
+    if (table.sorted) for (let c = 0; c < n; c++) table.hash[c] = hashBytes(table.blocks[table.block[c]], table.start[c], table.end[c]);
+    table.table = rehashConcepts(table.hash, n, table.table.length);
+  }
+  table.sorted = byteSorted;
 
   // Term columns.
   const concept = new Int32Array(m);

@@ -99,3 +99,33 @@ describe('finding concepts and comparing terms across releases', () => {
   });
 });
 
+
+describe('concept lookups after the canonical reorder', () => {
+  const ids = (r: Release) => Array.from({ length: r.conceptCount }, (_, c) => r.conceptIds[c]);
+
+  it('a file sorted by concept whose terms are not: every id is still found', async () => {
+    const r = await loadRelease(writeFile(tempDir(), 'r.tsv', tsv([H, ['C1', 'b', 'synonym', 'T2'], ['C1', 'a', 'preferred', 'T1'], ['C2', 'c', 'preferred', 'T3']])), { order: 'canonical' });
+    expect(ids(r)).toEqual(['C1', 'C2']);
+    expect(termTextAt(r, 0)).toBe('a');
+    expect(['C1', 'C2', 'C3'].map((id) => conceptIndexOf(r, id))).toEqual([0, 1, -1]);
+  });
+
+  it('a file in no order: every id is found, and concepts pair across releases', async () => {
+    const rows = [['C3', 'c', 'preferred', 'T3'], ['C1', 'a', 'preferred', 'T1'], ['C2', 'b', 'preferred', 'T2']];
+    const r = await loadRelease(writeFile(tempDir(), 'r.tsv', tsv([H, ...rows])), { order: 'canonical' });
+    const s = await loadRelease(writeFile(tempDir(), 's.tsv', tsv([H, ...[...rows].sort()])), { order: 'canonical' });
+    expect(ids(r)).toEqual(['C1', 'C2', 'C3']);
+    expect(['C1', 'C2', 'C3', 'C4'].map((id) => conceptIndexOf(r, id))).toEqual([0, 1, 2, -1]);
+    expect([...matchConceptIds(r, s)]).toEqual([0, 1, 2]);
+  });
+
+  it('ids whose UTF-16 order differs from their byte order (a character above U+FFFF)', async () => {
+    // Byte order: U+FF01 (EF BC 81) before U+1F600 (F0 9F 98 80); UTF-16 order: the surrogate
+    // D83D before FF01. The file is in byte order, the canonical order is UTF-16's.
+    const a = 'C\uFF01';
+    const b = 'C\u{1F600}';
+    const r = await loadRelease(writeFile(tempDir(), 'r.tsv', tsv([H, [a, 'x', 'preferred', 'T1'], [b, 'y', 'preferred', 'T2']])), { order: 'canonical' });
+    expect(ids(r)).toEqual([b, a]);
+    expect([conceptIndexOf(r, a), conceptIndexOf(r, b), conceptIndexOf(r, 'C')]).toEqual([1, 0, -1]);
+  });
+});
