@@ -278,6 +278,17 @@ export function attachReleaseBytes(r: Omit<Release, 'termText' | 'termId' | 'con
   return r as Release;
 }
 
+/**
+ * The bytes of every term text (term t: blocks[termBlock[t]][textStart[t] .. textEnd[t]), UTF-8),
+ * for readers that scan texts without decoding them; undefined when the release has no byte
+ * storage or its termText was replaced.
+ */
+export function termTextBytes(r: Release): { blocks: readonly Buffer[]; termBlock: Int32Array; textStart: Int32Array; textEnd: Int32Array } | undefined {
+  const b = bytesOf(r);
+  if (b === undefined || b.textReplaced) return undefined;
+  return { blocks: b.blocks, termBlock: b.termBlock, textStart: b.textStart, textEnd: b.textEnd };
+}
+
 /** Text of term t, decoded alone (the full `termText` array is not built). */
 export function termTextAt(r: Release, t: number): string {
   const b = bytesOf(r);

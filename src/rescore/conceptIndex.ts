@@ -20,6 +20,8 @@ import type { Release } from '../load/types.js';
 import { ACTIVE } from '../load/types.js';
 import { STOP_WORDS, foldTerm, stemToken } from '../text/normalize.js';
 import { GrowableInt32 } from '../load/growable.js';
+import { termTextAt, termTextBytes } from '../load/releaseBytes.js';
+import { AsciiTokens } from '../text/asciiTokens.js';
 
 /** Postings scanned per generating word at most (a bound on the work of one query). */
 const CANDIDATE_SCAN_MAX = 20_000;
@@ -63,6 +65,32 @@ export function indexWords(text: string): string[] {
   return out.length ? out : [folded];
 }
 
+/** The value at rank k (0 = largest) of v[0..n), by quickselect; reorders v. */
+function kthLargest(v: Float64Array, n: number, k: number): number {
+  let lo = 0;
+  let hi = n - 1;
+  while (lo < hi) {
+    const pivot = v[(lo + hi) >>> 1];
+    let i = lo;
+    let j = hi;
+    while (i <= j) {
+      while (v[i] > pivot) i++;
+      while (v[j] < pivot) j--;
+      if (i <= j) {
+        const x = v[i];
+        v[i] = v[j];
+        v[j] = x;
+        i++;
+        j--;
+      }
+    }
+    if (k <= j) hi = j;
+    else if (k >= i) lo = i;
+    else break;
+  }
+  return v[k];
+}
+
 export class ConceptIndex {
   readonly release: Release;
   private readonly wordIds = new Map<string, number>();
@@ -73,8 +101,13 @@ export class ConceptIndex {
   private readonly idfs: Float64Array;
   private readonly termNorm: Float64Array;
   /** trigram → vocabulary words (for fuzzy expansion), built on first need */
-  private gramIndex: Map<string, number[]> | null = null;
+  private grams: ReturnType<ConceptIndex['buildGrams']> | undefined;
   private readonly scratch: Float64Array;
+  /** Terms touched by the current query and their scores (reused between queries). */
+  private touched = new Int32Array(1 << 14);
+  private scores = new Float64Array(1 << 14);
+  /** Query word → weight during one query (0 = not in the query); built on the first search. */
+  private qWeight: Float64Array | undefined;
   private readonly termStart: Int32Array;
   private readonly termWords: Int32Array;
   private readonly maxPosting: number;
@@ -84,29 +117,46 @@ export class ConceptIndex {
   constructor(release: Release, options: ConceptIndexOptions = {}) {
     this.release = release;
     this.opts = { fuzzyMin: options.fuzzyMin ?? 0.6, fuzzyMax: options.fuzzyMax ?? 3 };
-    // Pass 1: words of every active term, as (word, term) pairs; a folded-token cache spares
-    // stemming the same token millions of times.
+    // Pass 1: words of every active term, as (word, term) pairs. Each distinct token is stemmed
+    // once: plain ASCII terms are tokenised from the loader's bytes (text/asciiTokens.ts, no
+    // string per term), the others through foldTerm with a folded-token cache.
     const tokenWord = new Map<string, number>();
+    const wordOfToken = (token: string): number => {
+      let w = tokenWord.get(token);
+      if (w === undefined) {
+        w = STOP_WORDS.has(token) ? -1 : this.wordId(stemToken(token));
+        tokenWord.set(token, w);
+      }
+      return w;
+    };
+    const ascii = new AsciiTokens(wordOfToken);
+    const raw = termTextBytes(release);
     const pw = new GrowableInt32(1 << 16);
     const pt = new GrowableInt32(1 << 16);
     let active = 0;
-    const texts = release.termText;
+    const push = (w: number, t: number, first: number) => {
+      for (let k = first; k < pw.length; k++) if (pw.data[k] === w) return;
+      pw.push(w);
+      pt.push(t);
+    };
     for (let t = 0; t < release.termCount; t++) {
       if (release.conceptStatus[release.termConcept[t]] !== ACTIVE || release.termStatus[t] !== ACTIVE) continue;
       active++;
-      const folded = foldTerm(texts[t]);
-      if (folded === '') continue;
       const first = pw.length;
-      for (const token of folded.split(' ')) {
-        let w = tokenWord.get(token);
-        if (w === undefined) {
-          w = STOP_WORDS.has(token) ? -1 : this.wordId(stemToken(token));
-          tokenWord.set(token, w);
+      if (raw) {
+        const n = ascii.tokens(raw.blocks[raw.termBlock[t]], raw.textStart[t], raw.textEnd[t]);
+        if (n === 0) continue; // spaces only: folds to ''
+        if (n > 0) {
+          for (let k = 0; k < n; k++) if (ascii.out[k] >= 0) push(ascii.out[k], t, first);
+          if (pw.length > first) continue;
+          // Stop words only: the folded text is the key, as below.
         }
-        if (w < 0) continue;
-        let dup = false;
-        for (let k = first; k < pw.length; k++) if (pw.data[k] === w) { dup = true; break; }
-        if (!dup) { pw.push(w); pt.push(t); }
+      }
+      const folded = foldTerm(termTextAt(release, t));
+      if (folded === '') continue;
+      for (const token of folded.split(' ')) {
+        const w = wordOfToken(token);
+        if (w >= 0) push(w, t, first);
       }
       if (pw.length === first) { pw.push(this.wordId(folded)); pt.push(t); }
     }
@@ -162,35 +212,61 @@ export class ConceptIndex {
   }
 
   private fuzzyUncached(word: string): { w: number; weight: number }[] {
-    if (!this.gramIndex) {
-      this.gramIndex = new Map();
-      for (let w = 0; w < this.words.length; w++) {
-        for (const g of new Set(trigrams(this.words[w]))) {
-          const list = this.gramIndex.get(g);
-          if (list) list.push(w);
-          else this.gramIndex.set(g, [w]);
-        }
+    const g = (this.grams ??= this.buildGrams());
+    const grams = [...new Set(trigrams(word))];
+    const count = g.count;
+    const touched: number[] = [];
+    for (const gram of grams) {
+      const id = g.ids.get(gram);
+      if (id === undefined) continue;
+      for (let k = g.start[id]; k < g.start[id + 1]; k++) {
+        const w = g.words[k];
+        if (count[w]++ === 0) touched.push(w);
       }
     }
-    const grams = [...new Set(trigrams(word))];
-    const shared = new Map<number, number>();
-    for (const g of grams) for (const w of this.gramIndex.get(g) ?? []) shared.set(w, (shared.get(w) ?? 0) + 1);
     const out: { w: number; weight: number }[] = [];
-    for (const [w, n] of shared) {
-      const other = new Set(trigrams(this.words[w])).size;
-      const dice = (2 * n) / (grams.length + other);
+    for (const w of touched) {
+      const dice = (2 * count[w]) / (grams.length + g.size[w]);
+      count[w] = 0;
       if (dice >= this.opts.fuzzyMin && this.words[w] !== word) out.push({ w, weight: dice });
     }
     return out.sort((a, b) => b.weight - a.weight || a.w - b.w).slice(0, this.opts.fuzzyMax);
   }
 
+  /** Character 3-grams → vocabulary words (compressed sparse rows), and each word's count of distinct 3-grams. */
+  private buildGrams(): { ids: Map<string, number>; start: Int32Array; words: Int32Array; size: Int32Array; count: Int32Array } {
+    const ids = new Map<string, number>();
+    const pg = new GrowableInt32(1 << 16);
+    const pw = new GrowableInt32(1 << 16);
+    const size = new Int32Array(this.words.length);
+    for (let w = 0; w < this.words.length; w++) {
+      const set = new Set(trigrams(this.words[w]));
+      size[w] = set.size;
+      for (const gram of set) {
+        let id = ids.get(gram);
+        if (id === undefined) ids.set(gram, (id = ids.size));
+        pg.push(id);
+        pw.push(w);
+      }
+    }
+    const start = new Int32Array(ids.size + 1);
+    for (let k = 0; k < pg.length; k++) start[pg.data[k] + 1]++;
+    for (let i = 0; i < ids.size; i++) start[i + 1] += start[i];
+    const fill = start.slice(0, ids.size);
+    const words = new Int32Array(pg.length);
+    for (let k = 0; k < pg.length; k++) words[fill[pg.data[k]]++] = pw.data[k];
+    return { ids, start, words, size, count: new Int32Array(this.words.length) };
+  }
+
   /**
    * Concepts whose terms best match `texts` (IDF-weighted Dice of word sets, best term per
-   * concept), best first; ties broken by concept index so results are deterministic.
+   * concept), best first; ties broken by concept index, then term index, so results are
+   * deterministic. Every term found through a generating word is scored on all query words.
    */
   search(texts: readonly string[], limit = 10, skipConcept = -1): IndexHit[] {
     const best = new Map<number, IndexHit>();
-    const acc = this.scratch;
+    const qWeight = (this.qWeight ??= new Float64Array(this.words.length));
+    const concept = this.release.termConcept;
     for (const text of texts) {
       const query: { w: number; weight: number }[] = [];
       let qNorm = 0;
@@ -206,41 +282,150 @@ export class ConceptIndex {
         }
       }
       const df = (q: { w: number }) => this.start[q.w + 1] - this.start[q.w];
-      // Candidates come from the rarer words; a query of common words only uses its rarest word.
       const rare = query.filter((q) => df(q) <= this.maxPosting);
-      const generators = rare.length > 0 || query.length === 0 ? rare : [query.reduce((a, b) => (df(b) < df(a) ? b : a))];
-      const touched: number[] = [];
-      for (const { w, weight } of generators) {
-        const gain = this.idfs[w] * weight;
-        const end = Math.min(this.start[w + 1], this.start[w] + CANDIDATE_SCAN_MAX);
-        for (let k = this.start[w]; k < end; k++) {
-          const t = this.terms[k];
-          if (acc[t] === 0) touched.push(t);
-          acc[t] += gain;
-        }
-      }
-      // Keep the best partial scores, then score them on every query word (forward index).
-      const partial = touched.map((t) => ({ t, a: acc[t] }));
-      for (const t of touched) acc[t] = 0;
-      if (partial.length > CANDIDATES_FULL) {
-        partial.sort((x, y) => y.a - x.a || x.t - y.t);
-        partial.length = CANDIDATES_FULL;
-      }
-      const weightOf = new Map<number, number>();
-      for (const q of query) weightOf.set(q.w, Math.max(weightOf.get(q.w) ?? 0, q.weight));
-      for (const { t } of partial) {
+      const n = rare.length > 0 ? this.fromRareWords(rare) : this.fromCommonWords(query.map((q) => q.w).sort((x, y) => df({ w: x }) - df({ w: y }) || x - y));
+      const touched = this.touched;
+      if (n === 0) continue;
+      // Score every candidate on all query words through the forward index (term → words).
+      for (const q of query) if (q.weight > qWeight[q.w]) qWeight[q.w] = q.weight;
+      if (this.scores.length < n) this.scores = new Float64Array(Math.max(n, this.scores.length * 2));
+      const scores = this.scores;
+      let scored = 0;
+      for (let i = 0; i < n; i++) {
+        const t = touched[i];
+        if (concept[t] === skipConcept) continue;
         let overlap = 0;
         for (let k = this.termStart[t]; k < this.termStart[t + 1]; k++) {
-          const wt = weightOf.get(this.termWords[k]);
-          if (wt !== undefined) overlap += this.idfs[this.termWords[k]] * wt;
+          const w = this.termWords[k];
+          const wt = qWeight[w];
+          if (wt !== 0) overlap += this.idfs[w] * wt;
         }
-        const c = this.release.termConcept[t];
-        if (c === skipConcept) continue;
-        const score = Math.min(1, (2 * overlap) / (qNorm + this.termNorm[t]));
-        const had = best.get(c);
-        if (!had || score > had.score || (score === had.score && t < had.term)) best.set(c, { concept: c, term: t, score });
+        touched[scored] = t;
+        scores[scored++] = Math.min(1, (2 * overlap) / (qNorm + this.termNorm[t]));
+      }
+      for (const q of query) qWeight[q.w] = 0;
+      for (const hit of this.topConcepts(touched, scores, scored, limit)) {
+        const had = best.get(hit.concept);
+        if (!had || hit.score > had.score || (hit.score === had.score && hit.term < had.term)) best.set(hit.concept, hit);
       }
     }
     return [...best.values()].sort((a, b) => b.score - a.score || a.concept - b.concept).slice(0, limit);
+  }
+
+  private ensureTouched(n: number): Int32Array {
+    if (n > this.touched.length) {
+      const grown = new Int32Array(Math.max(n, this.touched.length * 2));
+      grown.set(this.touched);
+      this.touched = grown;
+    }
+    return this.touched;
+  }
+
+  /**
+   * Candidates from the query's rarer words (each on at most `maxPosting` terms): the union of
+   * their postings, and when that holds more than CANDIDATES_FULL terms, the CANDIDATES_FULL
+   * with the most IDF weight of those words (ties by term index). Into this.touched; returns the count.
+   */
+  private fromRareWords(rare: readonly { w: number; weight: number }[]): number {
+    const acc = this.scratch;
+    let n = 0;
+    for (const { w, weight } of rare) {
+      const gain = this.idfs[w] * weight;
+      const s = this.start[w];
+      const end = Math.min(this.start[w + 1], s + CANDIDATE_SCAN_MAX);
+      const touched = this.ensureTouched(n + end - s);
+      for (let k = s; k < end; k++) {
+        const t = this.terms[k];
+        if (acc[t] === 0) touched[n++] = t;
+        acc[t] += gain;
+      }
+    }
+    const touched = this.touched;
+    if (n > CANDIDATES_FULL) {
+      if (this.scores.length < n) this.scores = new Float64Array(Math.max(n, this.scores.length * 2));
+      const v = this.scores;
+      for (let i = 0; i < n; i++) v[i] = acc[touched[i]];
+      const cut = kthLargest(v, n, CANDIDATES_FULL - 1);
+      let kept = 0;
+      let nt = 0;
+      const ties = new Int32Array(n);
+      for (let i = 0; i < n; i++) {
+        const t = touched[i];
+        const a = acc[t];
+        if (a > cut) touched[kept++] = t;
+        else if (a === cut) ties[nt++] = t;
+        acc[t] = 0;
+      }
+      const tied = ties.subarray(0, nt).sort();
+      for (let i = 0; kept < CANDIDATES_FULL && i < nt; i++) touched[kept++] = tied[i];
+      return kept;
+    }
+    for (let i = 0; i < n; i++) acc[touched[i]] = 0;
+    return n;
+  }
+
+  /**
+   * Candidates of a query whose words are all common (each on more than `maxPosting` terms):
+   * the terms that have the rarest word, narrowed by intersecting with the next rarest words
+   * while more than CANDIDATES_FULL remain and the intersection is not empty. Postings are in
+   * term order, so each step is a merge. At most CANDIDATE_SCAN_MAX postings per word are read;
+   * of a final set above CANDIDATES_FULL the first (lowest term indexes) are kept.
+   */
+  private fromCommonWords(byRarity: readonly number[]): number {
+    if (byRarity.length === 0) return 0;
+    const w0 = byRarity[0];
+    const s0 = this.start[w0];
+    let n = Math.min(this.start[w0 + 1] - s0, CANDIDATE_SCAN_MAX);
+    let cur: Int32Array = this.ensureTouched(n);
+    cur.set(this.terms.subarray(s0, s0 + n));
+    let next: Int32Array = new Int32Array(n);
+    for (let q = 1; q < byRarity.length && n > CANDIDATES_FULL; q++) {
+      const w = byRarity[q];
+      let k = this.start[w];
+      const end = Math.min(this.start[w + 1], k + CANDIDATE_SCAN_MAX);
+      let m = 0;
+      for (let i = 0; i < n && k < end; i++) {
+        const t = cur[i];
+        while (k < end && this.terms[k] < t) k++;
+        if (k < end && this.terms[k] === t) next[m++] = t;
+      }
+      if (m === 0) break;
+      const swap = cur;
+      cur = next;
+      next = swap;
+      n = m;
+    }
+    if (cur !== this.touched) this.touched.set(cur.subarray(0, n));
+    return Math.min(n, CANDIDATES_FULL);
+  }
+
+  /**
+   * The `limit` best concepts among terms[0..n) with their scores: each concept's best term
+   * (lowest term index on ties), concepts by score, then concept index. Only the terms at or
+   * above a cut found by selection are sorted; if they hold fewer than `limit` concepts, all are.
+   */
+  private topConcepts(terms: Int32Array, scores: Float64Array, n: number, limit: number): IndexHit[] {
+    const concept = this.release.termConcept;
+    const pick = (list: number[]): IndexHit[] => {
+      list.sort((i, j) => scores[j] - scores[i] || concept[terms[i]] - concept[terms[j]] || terms[i] - terms[j]);
+      const out: IndexHit[] = [];
+      const taken = new Set<number>();
+      for (const i of list) {
+        const c = concept[terms[i]];
+        if (taken.has(c)) continue;
+        taken.add(c);
+        out.push({ concept: c, term: terms[i], score: scores[i] });
+        if (out.length === limit) break;
+      }
+      return out;
+    };
+    const k = Math.min(n, limit * 8);
+    if (k === n) return pick(Array.from({ length: n }, (_, i) => i));
+    const copy = scores.slice(0, n);
+    const cut = kthLargest(copy, n, k - 1);
+    const list: number[] = [];
+    for (let i = 0; i < n; i++) if (scores[i] >= cut) list.push(i);
+    const out = pick(list);
+    return out.length === limit ? out : pick(Array.from({ length: n }, (_, i) => i));
   }
 }
