@@ -169,9 +169,37 @@ export function applyCanonicalOrder(r: Release, bytes: ReleaseBytes, rebuildInde
  * its walks (ancestors, neighbours, the scorer's context) no longer follow the file's row order.
  */
 export function canonicalHierarchy(h: Hierarchy): Hierarchy {
+  if (isCanonicalHierarchy(h)) return h;
+  if (childrenInOrder(h)) {
+    // The usual file sorted by child only: sort the parent lists that need it, keys as they are.
+    const parents = new Map(h.parents);
+    for (const [child, list] of parents) if (!inOrder(list)) parents.set(child, [...list].sort(cmpStrings));
+    return { ...h, parents };
+  }
   const parents = new Map<string, string[]>();
   for (const child of [...h.parents.keys()].sort(cmpStrings)) parents.set(child, [...h.parents.get(child)!].sort(cmpStrings));
   return { ...h, parents };
+}
+
+function inOrder(list: readonly string[]): boolean {
+  for (let k = 1; k < list.length; k++) if (!(list[k - 1] < list[k])) return false;
+  return true;
+}
+
+function childrenInOrder(h: Hierarchy): boolean {
+  let prev: string | undefined;
+  for (const child of h.parents.keys()) {
+    if (prev !== undefined && !(prev < child)) return false;
+    prev = child;
+  }
+  return true;
+}
+
+/** Children in increasing id order, each child's parents too (a file sorted by child and parent). */
+function isCanonicalHierarchy(h: Hierarchy): boolean {
+  if (!childrenInOrder(h)) return false;
+  for (const list of h.parents.values()) if (!inOrder(list)) return false;
+  return true;
 }
 
 /** The same history table with its rows sorted by old id, relation, new id (byOld likewise). */

@@ -2,7 +2,22 @@
 import type { Detector } from '../detector.js';
 import { makeChange } from '../detector.js';
 import { isActive } from '../context.js';
-import { conceptIndexOf } from '../../load/releaseBytes.js';
+import { matchConceptIds } from '../../load/releaseBytes.js';
+
+const EMPTY: readonly string[] = [];
+
+/** The list sorted and without duplicates; the list itself when it is so already (a canonical hierarchy). */
+function sortedSet(list: readonly string[] | undefined): string[] {
+  if (!list) return EMPTY as string[];
+  for (let k = 1; k < list.length; k++) if (!(list[k - 1] < list[k])) return [...new Set(list)].sort();
+  return list as string[];
+}
+
+function sameList(a: readonly string[], b: readonly string[]): boolean {
+  if (a.length !== b.length) return false;
+  for (let k = 0; k < a.length; k++) if (a[k] !== b[k]) return false;
+  return true;
+}
 
 export const hierarchyChange: Detector<'hierarchy_change'> = {
   kind: 'hierarchy_change',
@@ -10,20 +25,23 @@ export const hierarchyChange: Detector<'hierarchy_change'> = {
     const oh = ctx.input.oldHierarchy;
     const nh = ctx.input.newHierarchy;
     if (!oh || !nh) return [];
-    const ids = new Set([...oh.parents.keys(), ...nh.parents.keys()]);
     const out = [];
-    for (const id of [...ids].sort()) {
-      const c = conceptIndexOf(ctx.old, id);
-      const n = conceptIndexOf(ctx.new, id);
-      if (c < 0 || n < 0 || !isActive(ctx.old, c) || !isActive(ctx.new, n)) continue;
+    // Every concept of the old release with the same id in the new one (a merge of the two id
+    // lists; no lookup per hierarchy row), in the release's id order.
+    const match = matchConceptIds(ctx.old, ctx.new);
+    for (let c = 0; c < ctx.old.conceptCount; c++) {
+      const n = match[c];
+      if (n < 0 || !isActive(ctx.old, c) || !isActive(ctx.new, n)) continue;
+      const id = ctx.old.conceptIds[c];
+      const before = sortedSet(oh.parents.get(id));
+      const after = sortedSet(nh.parents.get(id));
+      if (sameList(before, after)) continue;
       if (ctx.olds.get(c)?.fate === 'reused') continue;
-      const before = [...new Set(oh.parents.get(id) ?? [])].sort();
-      const after = [...new Set(nh.parents.get(id) ?? [])].sort();
-      if (before.join('\u0001') === after.join('\u0001')) continue;
       const added = after.filter((p) => !before.includes(p));
       const removed = before.filter((p) => !after.includes(p));
       out.push(makeChange('hierarchy_change', [id], [id], [], 1, { parents_before: before, parents_after: after, added, removed }));
     }
+    out.sort((x, y) => (x.from[0] < y.from[0] ? -1 : x.from[0] > y.from[0] ? 1 : 0));
     return out;
   },
 };
