@@ -27,6 +27,7 @@
 import type { Hierarchy, Release } from '../load/types.js';
 import { ACTIVE } from '../load/types.js';
 import { foldTerm, lexicalKey } from '../text/normalize.js';
+import { termTextAt } from '../load/releaseBytes.js';
 import { jaroWinkler, levenshteinSimilarity, trigramDice } from '../text/similarity.js';
 import { DocumentFrequencies, tfidfCosine } from '../text/tfidf.js';
 
@@ -81,7 +82,7 @@ export function releaseDocumentFrequencies(r: Release, maxTerms = 100_000): Docu
   }
   const step = Math.max(1, active.length / maxTerms);
   for (let i = 0; i < active.length; i += step) {
-    const key = lexicalKey(r.termText[active[Math.floor(i)]]);
+    const key = lexicalKey(termTextAt(r, active[Math.floor(i)]));
     df.add(key === '' ? [] : key.split(' '));
   }
   return df;
@@ -122,7 +123,7 @@ export class ReleaseFeatures {
     let entry = this.cache.get(c);
     if (!entry) {
       entry = activeTermsOf(this.release, c).map((t) => {
-        const text = this.release.termText[t];
+        const text = termTextAt(this.release, t);
         return { term: t, nfc: text.normalize('NFC'), folded: foldTerm(text) };
       });
       this.cache.set(c, entry);
@@ -166,17 +167,17 @@ export class ReleaseFeatures {
     for (const e of terms) {
       if (e.term === skipTerm) continue;
       ReleaseFeatures.fillLexical(e);
-      const values = [
-        0,
-        0,
-        e.lexical !== '' && e.lexical === label.lexical ? 1 : 0,
-        tfidfCosine(label.stems, e.stems!, this.df),
-        trigramDice(label.folded, e.folded),
-        jaroWinkler(label.folded, e.folded),
-        levenshteinSimilarity(label.folded, e.folded),
-      ];
-      for (let j = 2; j < LEXICAL_COUNT; j++) if (values[j] > out[offset + j]) out[offset + j] = values[j];
-      const key = values[4] * 2 + values[3];
+      const lexical = e.lexical !== '' && e.lexical === label.lexical ? 1 : 0;
+      const tfidf = tfidfCosine(label.stems, e.stems!, this.df);
+      const trigram = trigramDice(label.folded, e.folded);
+      const jw = jaroWinkler(label.folded, e.folded);
+      const lev = levenshteinSimilarity(label.folded, e.folded);
+      if (lexical > out[offset + 2]) out[offset + 2] = lexical;
+      if (tfidf > out[offset + 3]) out[offset + 3] = tfidf;
+      if (trigram > out[offset + 4]) out[offset + 4] = trigram;
+      if (jw > out[offset + 5]) out[offset + 5] = jw;
+      if (lev > out[offset + 6]) out[offset + 6] = lev;
+      const key = trigram * 2 + tfidf;
       if (key > bestKey) {
         bestKey = key;
         bestTerm = e.term;

@@ -19,6 +19,8 @@
  * releases, so its lexical features are computed once and shared; such a mapping runs no
  * search. Label forms, per-concept term forms and searches (by label text) are cached.
  */
+import { conceptIndexOf, termTextAt } from '../load/releaseBytes.js';
+
 import type { DiffContext } from '../classify/context.js';
 import { categoryName, isActive, resolveHistory } from '../classify/context.js';
 import { conceptLabel } from '../classify/detector.js';
@@ -33,6 +35,12 @@ import {
 } from './features.js';
 import { Scorer, trainScorer, type TrainOptions } from './trainScorer.js';
 import type { MappingResult, MappingSuggestion, ScorerInfo, Verdict } from './types.js';
+
+/** The concept with this id, or undefined. */
+function indexOf(r: Release, id: string): number | undefined {
+  const c = conceptIndexOf(r, id);
+  return c < 0 ? undefined : c;
+}
 
 /** Thresholds and margins of the verdicts; defaults and reasoning in docs/THRESHOLDS.md. */
 export interface VerdictThresholds {
@@ -158,7 +166,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   for (const node of ctx.news.values()) {
     if (!node.active) continue;
     for (const t of node.terms) {
-      const f = textForms(newR.termText[t]);
+      const f = textForms(termTextAt(newR, t));
       for (const key of [`f${f.folded}`, `l${f.lexical}`]) {
         const list = frontierText.get(key);
         if (!list) frontierText.set(key, [node.n]);
@@ -207,32 +215,43 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   };
 
   const resolveOld = (id: string): string | undefined => {
-    if (oldR.conceptIndex.has(id)) return id;
+    if (conceptIndexOf(oldR, id) >= 0) return id;
     const colon = id.indexOf(':');
     if (colon > 0 && !/^https?:/i.test(id)) {
       const local = id.slice(colon + 1);
-      if (oldR.conceptIndex.has(local)) return local;
+      if (conceptIndexOf(oldR, local) >= 0) return local;
     }
     return undefined;
   };
   const resolveNew = (id: string): string | undefined => {
-    if (newR.conceptIndex.has(id)) return id;
+    if (conceptIndexOf(newR, id) >= 0) return id;
     const colon = id.indexOf(':');
     if (colon > 0) {
       const local = id.slice(colon + 1);
-      if (newR.conceptIndex.has(local)) return local;
+      if (conceptIndexOf(newR, local) >= 0) return local;
     }
     return undefined;
   };
   const newLabel = (n: number) => conceptLabel(newR, n);
+  /** Folded forms of every term of new concept n (any status), once per concept. */
+  const foldedTerms = new Map<number, string[]>();
+  const foldedTermsOf = (n: number): string[] => {
+    let list = foldedTerms.get(n);
+    if (!list) {
+      list = [];
+      for (let k = newR.conceptTermStart[n]; k < newR.conceptTermStart[n + 1]; k++) list.push(foldTerm(termTextAt(newR, newR.conceptTerms[k])));
+      foldedTerms.set(n, list);
+    }
+    return list;
+  };
 
   function assess(m: Mapping): MappingResult {
     const reasons: string[] = [];
     const candidates = new Map<number, Candidate>();
     const oldId = resolveOld(m.targetId);
     const id = oldId ?? resolveNew(m.targetId) ?? m.targetId;
-    const cOld = oldId !== undefined ? oldR.conceptIndex.get(oldId) : undefined;
-    const cNewAny = newR.conceptIndex.get(id);
+    const cOld = oldId !== undefined ? indexOf(oldR, oldId) : undefined;
+    const cNewAny = indexOf(newR, id);
     const labelText = m.localLabel.trim() !== '' ? m.localLabel : cOld !== undefined ? conceptLabel(oldR, cOld) : '';
     if (m.localLabel.trim() === '' && cOld !== undefined) reasons.push("The mapping has no label; the target's old preferred term stands in for it.");
     const label = formsOf(labelText);
@@ -247,8 +266,8 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     const addHistory = () => {
       const h = ctx.input.history;
       if (!h) return;
-      for (const t of resolveHistory(h, newR, id, true).targets) add(newR.conceptIndex.get(t), 'history');
-      for (const t of resolveHistory(h, newR, id, false).targets) add(newR.conceptIndex.get(t), 'history_consider');
+      for (const t of resolveHistory(h, newR, id, true).targets) add(indexOf(newR, t), 'history');
+      for (const t of resolveHistory(h, newR, id, false).targets) add(indexOf(newR, t), 'history_consider');
     };
     const addFrontier = (flows?: Map<number, number[]>) => {
       for (const key of [`f${label.folded}`, `l${label.lexical}`]) {
@@ -268,12 +287,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
       const key = (c: Candidate) => c.score + (holdsLabel(c.n) ? TIE_MARGIN : 0);
       return [...candidates.values()].sort((a, b) => key(b) - key(a) || b.score - a.score || (newR.conceptIds[a.n] < newR.conceptIds[b.n] ? -1 : 1));
     };
-    const holdsLabel = (n: number) => {
-      const s = newR.conceptTermStart[n];
-      const e = newR.conceptTermStart[n + 1];
-      for (let k = s; k < e; k++) if (foldTerm(newR.termText[newR.conceptTerms[k]]) === label.folded) return true;
-      return false;
-    };
+    const holdsLabel = (n: number) => foldedTermsOf(n).includes(label.folded);
     const describe = (c: Candidate) => `${newR.conceptIds[c.n]} ${quote(newLabel(c.n))} (${round3(c.score)})`;
     const finish = (verdict: Verdict, scoreOld: number | null, scoreNew: number | null, keep: 'all' | 'target' | 'none' = 'all', lead = -1): MappingResult => {
       let list = keep === 'none' ? [] : ranked();
@@ -370,7 +384,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
         addHistory();
         flowTargets();
         const retirement = changes.find((c) => c.kind === 'retirement' && c.from[0] === id);
-        if (retirement && retirement.kind === 'retirement') for (const s of retirement.evidence.suggestions) add(newR.conceptIndex.get(s.concept_id), s.reason);
+        if (retirement && retirement.kind === 'retirement') for (const s of retirement.evidence.suggestions) add(indexOf(newR, s.concept_id), s.reason);
         addFrontier(nodeFlows);
         addSearch();
         const list = ranked();
@@ -493,7 +507,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     let bestS = -1;
     let second = -1;
     for (const t of o.terms) {
-      const sim = trigramDice(foldedLabel, foldTerm(oldR.termText[t]));
+      const sim = trigramDice(foldedLabel, foldTerm(termTextAt(oldR, t)));
       if (sim > bestS) { second = bestS; bestS = sim; bestT = t; }
       else if (sim > second) second = sim;
     }
@@ -502,7 +516,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     if (li < 0) return -1;
     const home = newR.termConcept[ctx.align.links[li].newTerm];
     if (home === n || !isActive(newR, home)) return -1;
-    movedTermText = oldR.termText[bestT];
+    movedTermText = termTextAt(oldR, bestT);
     return home;
   }
 

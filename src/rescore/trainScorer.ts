@@ -24,6 +24,7 @@
  * - 25% of the pairs are held out for AUC and ECE. Classes are balanced (half positives); the
  *   probability therefore reads "given a candidate as close as the ones the scorer is shown".
  */
+import { conceptIndexOf, termIdAt, termTextAt } from '../load/releaseBytes.js';
 import type { Hierarchy, Release } from '../load/types.js';
 import { ACTIVE } from '../load/types.js';
 import type { DocumentFrequencies } from '../text/tfidf.js';
@@ -160,8 +161,11 @@ function subRelease(r: Release, concepts: number[]): { release: Release; origina
   for (let i = 0; i < concepts.length; i++) for (let k = start[i]; k < start[i + 1]; k++) termConcept[k] = i;
   const pick = <T>(arr: ArrayLike<T>) => terms.map((t) => arr[t]);
   const ids = concepts.map((c) => r.conceptIds[c]);
+  // Not `...r`: spreading would build the source's lazy termText, termId and conceptIndex arrays.
+  const lazy = new Set(['termText', 'termId', 'conceptIndex']);
+  const base = Object.fromEntries(Object.keys(r).filter((k) => !lazy.has(k)).map((k) => [k, (r as unknown as Record<string, unknown>)[k]])) as unknown as Release;
   const release: Release = {
-    ...r,
+    ...base,
     label: `${r.label} (pool)`,
     conceptCount: concepts.length,
     conceptIds: ids,
@@ -171,9 +175,9 @@ function subRelease(r: Release, concepts: number[]): { release: Release; origina
     conceptLine: Int32Array.from(concepts, (c) => r.conceptLine[c]),
     termCount: terms.length,
     termConcept,
-    termText: pick(r.termText),
+    termText: terms.map((t) => termTextAt(r, t)),
     termType: Uint8Array.from(pick(r.termType)),
-    termId: pick(r.termId),
+    termId: terms.map((t) => termIdAt(r, t)),
     termLanguage: Int32Array.from(pick(r.termLanguage)),
     termStatus: Uint8Array.from(pick(r.termStatus)),
     termLine: Int32Array.from(pick(r.termLine)),
@@ -190,8 +194,8 @@ function neighbourFinder(r: Release, eligible: number[], hierarchy?: Hierarchy):
   const children = new Map<string, number[]>();
   if (hierarchy) {
     for (const [child, parents] of hierarchy.parents) {
-      const c = r.conceptIndex.get(child);
-      if (c === undefined || !isEligible[c]) continue;
+      const c = conceptIndexOf(r, child);
+      if (c < 0 || !isEligible[c]) continue;
       for (const p of parents) {
         const list = children.get(p);
         if (list) list.push(c);
@@ -291,10 +295,10 @@ export function trainScorer(release: Release, options: TrainOptions = {}): Score
     const leaveOut = terms.length > 1 && rng.next() < o.leaveOutShare;
     let qualifier = '';
     if (!leaveOut) {
-      const other = release.termText[activeTermsOf(release, eligible[rng.int(eligible.length)])[0]].split(' ');
+      const other = termTextAt(release, activeTermsOf(release, eligible[rng.int(eligible.length)])[0]).split(' ');
       qualifier = other[rng.int(other.length)];
     }
-    const label = leaveOut ? release.termText[t] : localVariant(release.termText[t], rng, qualifier);
+    const label = leaveOut ? termTextAt(release, t) : localVariant(termTextAt(release, t), rng, qualifier);
     const contextOf = rng.next() < o.neighbourContextShare ? neighbours(c, rng) ?? c : c;
     addPair(label, c, c, true, leaveOut ? t : -1, contextOf, rng.next() < o.categoryShiftShare);
     samples.push({ concept: c, label });
