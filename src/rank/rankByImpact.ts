@@ -29,16 +29,42 @@ export function impactOf(verdict: Verdict, usage: number, weights: Readonly<Reco
   return weights[verdict] * Math.max(0, usage);
 }
 
-const byLocalCode = (a: MappingResult, b: MappingResult) => (a.local_code < b.local_code ? -1 : a.local_code > b.local_code ? 1 : a.line - b.line);
+/** Code-unit order: the same on every machine and locale. */
+const compareText = (a: string, b: string) => (a < b ? -1 : a > b ? 1 : 0);
 
 /**
- * A new array of the results with `impact` recomputed from `weights`, ordered by impact
- * (highest first), then local code, then source line. The input is not modified.
+ * The order of mappings of equal impact, by what they say and never by where their rows sit in
+ * the mapping file, so that the same mapping set in another row order gives the same report:
+ * local code, then target (a mapping set holds one mapping per local code and target; the
+ * loaders reject a second), then local label, verdict, relation, owner and usage, so that the
+ * order is total also for results a caller puts together from several sets.
+ */
+export function compareMappings(a: MappingResult, b: MappingResult): number {
+  return (
+    compareText(a.local_code, b.local_code) ||
+    compareText(a.target_id, b.target_id) ||
+    compareText(a.local_label, b.local_label) ||
+    compareText(a.verdict, b.verdict) ||
+    compareText(a.relation, b.relation) ||
+    compareText(a.owner, b.owner) ||
+    a.usage - b.usage
+  );
+}
+
+/** The order of mappings in every list and every form: impact (highest first), then compareMappings. */
+export function compareByImpact(a: MappingResult, b: MappingResult): number {
+  return b.impact - a.impact || compareMappings(a, b);
+}
+
+/**
+ * A new array of the results with `impact` recomputed from `weights`, ordered by compareByImpact:
+ * impact (highest first), then local code, target and the rest of the mapping (not its line).
+ * The input is not modified.
  */
 export function rankByImpact(results: readonly MappingResult[], weights: Readonly<Record<Verdict, number>> = SEVERITY): MappingResult[] {
   return results
     .map((r) => ({ ...r, impact: impactOf(r.verdict, r.usage, weights) }))
-    .sort((a, b) => b.impact - a.impact || byLocalCode(a, b));
+    .sort(compareByImpact);
 }
 
 export interface ChangeWithMappings {
@@ -80,7 +106,7 @@ export function groupByChange(results: readonly MappingResult[], changes: readon
     if (list) list.push(r);
     else groups.set(primary, [r]);
   }
-  const rank = (list: MappingResult[]) => [...list].sort((a, b) => b.impact - a.impact || byLocalCode(a, b));
+  const rank = (list: MappingResult[]) => [...list].sort(compareByImpact);
   const withMappings: ChangeWithMappings[] = [...groups].map(([id, list]) => {
     const mappings = rank(list);
     return { change: byId.get(id)!, mappings, impact: mappings.reduce((s, m) => s + m.impact, 0) };

@@ -5,7 +5,7 @@
  * - changes in sections by severity (does the kind change what a code means?) then by kind,
  *   kinds in CHANGE_KINDS order (most dangerous first);
  * - mappings needing action (verdict other than ok, not settled by an earlier review decision),
- *   ordered by impact, then local code, then source line; the settled ones apart; and the same mappings grouped under the change that caused them (the grouping
+ *   ordered by impact, then local code, target and the rest of the mapping (never its line); the settled ones apart; and the same mappings grouped under the change that caused them (the grouping
  *   of rankByImpact's groupByChange: groups by total impact), those no change touches last;
  * - the changes that touch no mapping, listed after the groups;
  * - counts by verdict and by kind, impact buckets, the input accounting table and the
@@ -17,7 +17,7 @@ import { CHANGE_KINDS, type Change, type ChangeKind } from '../classify/types.js
 import { VERDICTS, type MappingResult, type Verdict } from '../rescore/types.js';
 import { isCheckReport, type CheckReport, type InputInfo, type Report } from '../report/types.js';
 import { diffArrays, diffWords } from 'diff';
-import { groupByChange } from '../rank/rankByImpact.js';
+import { compareByImpact, groupByChange } from '../rank/rankByImpact.js';
 
 /** Plain words for each verdict; `action` is false only for the verdict that needs no review. */
 export const VERDICT_INFO: Record<Verdict, { title: string; meaning: string; action: boolean }> = {
@@ -66,7 +66,7 @@ export interface SeveritySection {
 /** Mappings needing action whose main cause is one change (or none: `change` null). */
 export interface ActionGroup {
   change: Change | null;
-  /** By impact, then local code, then line. */
+  /** By impact, then local code, target and the rest of the mapping (compareByImpact). */
   mappings: MappingResult[];
   /** Sum of the mappings' impact. */
   impact: number;
@@ -173,10 +173,8 @@ export function compareText(a: string, b: string): number {
   return a < b ? -1 : a > b ? 1 : 0;
 }
 
-/** The order of mappings in every form: impact descending, then local code, then line. */
-export function compareByImpact(a: MappingResult, b: MappingResult): number {
-  return b.impact - a.impact || compareText(a.local_code, b.local_code) || a.line - b.line;
-}
+/** The order of mappings in every form: rankByImpact's (impact descending, then the mapping's content, never its line). */
+export { compareByImpact };
 
 export function buildView(report: Report, options: ViewOptions = {}): ReportView {
   const check = isCheckReport(report) ? report : null;

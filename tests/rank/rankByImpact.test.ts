@@ -35,6 +35,20 @@ describe('impact', () => {
     // Other weights can be given.
     expect(rankByImpact(input, { ...SEVERITY, ok: 1 })[0].local_code).toBe('D');
   });
+
+  it('breaks a tie of one local code by the mapping\'s content, never by its line', () => {
+    const at = (target: string, line: number, more: Partial<MappingResult> = {}) => ({ ...result('L1', 'drifted', 1, [], line), target_id: target, ...more });
+    const rows = [at('T2', 2), at('T1', 3), at('T3', 4, { local_label: 'b' }), at('T3', 5, { local_label: 'a', owner: 'x' }), at('T3', 6, { local_label: 'a', owner: 'w' })];
+    const key = (list: MappingResult[]) => list.map((r) => `${r.target_id}/${r.local_label}/${r.owner}`);
+    const want = ['T1/L1/', 'T2/L1/', 'T3/a/w', 'T3/a/x', 'T3/b/'];
+    expect(key(rankByImpact(rows))).toEqual(want);
+    // The same rows in the other order, and with their lines swapped: the same order.
+    expect(key(rankByImpact([...rows].reverse()))).toEqual(want);
+    expect(key(rankByImpact(rows.map((r, i) => ({ ...r, line: 100 - i }))))).toEqual(want);
+    // Within a change's group too.
+    const grouped = groupByChange([...rows].reverse().map((r) => ({ ...r, impact: 8, change_ids: ['retirement:R>'] })), [change('retirement:R>', 'retirement')]);
+    expect(key(grouped.changes[0].mappings)).toEqual(want);
+  });
 });
 
 describe('groupByChange', () => {

@@ -10,6 +10,13 @@
  * of a row ("line 18 of the mappings", `"line": 18`), which says where the row is in its file.
  * The inputs are given by the same relative paths, so paths do not differ. Every change, verdict,
  * score, suggestion, order and count must be the same.
+ *
+ * Ties: the demo mapping set has one mapping per local code, so it cannot show how two mappings
+ * of one local code with the same impact are ordered. A copy of it gets two such pairs (invented
+ * rows on the demo releases): one local code mapped to two targets that both stay `ok` (impact 0
+ * each), and one mapped to two targets that both drift (usage 1, impact 8 each). Its rows are
+ * given in their order, reversed (so each pair is swapped) and shuffled; every form must give the
+ * same bytes, once input hashes and row lines are set aside as above.
  */
 import { describe, expect, it } from 'vitest';
 import { createHash } from 'node:crypto';
@@ -17,7 +24,7 @@ import { readFileSync, writeFileSync, mkdirSync } from 'node:fs';
 import { join } from 'node:path';
 import { tempDir } from '../helpers/files.js';
 import { DEMO, expectCleanExit, runCli } from './cli.js';
-import { seeded, shuffleRows } from './tables.js';
+import { formatTable, parseTable, seeded, shuffleRows } from './tables.js';
 
 const FILES = ['release-r1.tsv', 'release-r2.tsv', 'hierarchy-r1.tsv', 'hierarchy-r2.tsv', 'history-r2.tsv', 'mappings.tsv', 'mappings.sssom.tsv'];
 const FORMATS = ['json', 'md', 'csv', 'html', 'text'] as const;
@@ -80,4 +87,71 @@ describe('the same report whatever the order of the rows', () => {
       }
     });
   }
+});
+
+describe('mappings of one local code with equal impact are ordered by content, not by line', () => {
+  // Invented rows on the demo releases (demo-data/, our own scenario). TIE-OK maps to two targets
+  // whose terms still match ("FBC" to QV10169A, "Hb" to QV10188E); TIE-DRIFT maps "FBC" to two
+  // targets whose meaning moved away from it, each under a change of its own; TIE-MERGE maps
+  // "B12" to both concepts of one merge, so the pair is listed under one change in every form
+  // (Markdown and HTML list mappings by change). Checked below: the verdicts, equal impacts.
+  const TIES = [
+    ['TIE-OK', 'FBC', 'QV10169A', 'exact', '1', 'Haematology'],
+    ['TIE-OK', 'Hb', 'QV10188E', 'exact', '1', 'Haematology'],
+    ['TIE-DRIFT', 'FBC', 'QV10188E', 'exact', '1', 'Haematology'],
+    ['TIE-DRIFT', 'FBC', 'QV10040V', 'exact', '1', 'Haematology'],
+    ['TIE-MERGE', 'B12', 'QV10269E', 'exact', '1', 'Haematology'],
+    ['TIE-MERGE', 'B12', 'QV10251J', 'exact', '1', 'Haematology'],
+  ];
+  const PAIRS = [['TIE-OK', 'QV10169A', 'QV10188E'], ['TIE-DRIFT', 'QV10040V', 'QV10188E'], ['TIE-MERGE', 'QV10251J', 'QV10269E']];
+  const base = parseTable(readFileSync(join(DEMO, 'mappings.tsv'), 'utf8'));
+  const rows = [...base.rows, ...TIES];
+  const orders: Record<string, string[][]> = {
+    'as written': rows,
+    reversed: [...rows].reverse(),
+    'shuffled (seed 11)': shuffleRowsOf(rows, 11),
+    'shuffled (seed 2026)': shuffleRowsOf(rows, 2026),
+  };
+  const dirs = Object.fromEntries(Object.entries(orders).map(([name, r]) => {
+    const dir = demoCopy(0);
+    writeFileSync(join(dir, 'mappings.tsv'), formatTable({ ...base, rows: r }));
+    return [name, dir];
+  }));
+
+  function shuffleRowsOf(list: string[][], seed: number): string[][] {
+    const text = formatTable({ ...base, rows: list });
+    return parseTable(shuffleRows(text, seeded(seed))).rows;
+  }
+
+  it('the pairs are real ties, and the row orders really differ for them', () => {
+    expect(base.header).toEqual(['local_code', 'local_label', 'target_id', 'relation', 'usage', 'owner']);
+    const r = runCli(checkArgs('mappings.tsv', 'json'), { cwd: dirs['as written'] });
+    expectCleanExit(r, 0);
+    const mappings = (JSON.parse(r.stdout) as { mappings: { local_code: string; target_id: string; verdict: string; impact: number; change_ids: string[] }[] }).mappings;
+    const of = (code: string) => mappings.filter((m) => m.local_code === code).map((m) => [m.target_id, m.verdict, m.impact]);
+    // Equal impact within each pair, listed by target id.
+    expect(of('TIE-OK')).toEqual([['QV10169A', 'ok', 0], ['QV10188E', 'ok', 0]]);
+    expect(of('TIE-DRIFT')).toEqual([['QV10040V', 'drifted', 8], ['QV10188E', 'drifted', 8]]);
+    expect(of('TIE-MERGE')).toEqual([['QV10251J', 'redirect', 4], ['QV10269E', 'redirect', 4]]);
+    const merge = 'merge:QV10251J+QV10269E>QV21114K';
+    expect(mappings.filter((m) => m.local_code === 'TIE-MERGE').every((m) => m.change_ids.includes(merge))).toBe(true);
+    // Each pair is swapped in the reversed file, so a tie broken by line would show there.
+    const position = (list: string[][], code: string, target: string) => list.findIndex((row) => row[0] === code && row[2] === target);
+    for (const [code, a, b] of PAIRS) {
+      expect(position(orders['as written'], code, a) < position(orders['as written'], code, b), code).not.toBe(position(orders.reversed, code, a) < position(orders.reversed, code, b));
+    }
+  });
+
+  it.each(FORMATS)('check --format %s gives the same report for every row order', (format) => {
+    const [first, ...others] = Object.entries(dirs);
+    const expected = runCli(checkArgs('mappings.tsv', format), { cwd: first[1] });
+    expectCleanExit(expected, 0);
+    for (const [code] of PAIRS) if (code !== 'TIE-OK' || format === 'json') expect(expected.stdout).toContain(code);
+    const want = normalise(expected.stdout, first[1]);
+    for (const [name, dir] of others) {
+      const r = runCli(checkArgs('mappings.tsv', format), { cwd: dir });
+      expectCleanExit(r, 0);
+      expect(normalise(r.stdout, dir), `${format}, rows ${name}`).toBe(want);
+    }
+  });
 });
