@@ -142,19 +142,39 @@ export type HeapPlan =
   | { action: 'reexec'; heapMb: number }
   | { action: 'refuse'; error: InputError };
 
+/** The heap a run needs is its heap estimate times this: room for the garbage collector. */
+export const HEAP_MARGIN = 1.25;
+
+/** The share of the machine's memory (or the control group's limit) a run may plan to use. */
+export const MEMORY_SHARE = 0.9;
+
 const MIB = 1 << 20;
-const mb = (n: number) => `${Math.ceil(n / MIB).toLocaleString('en-US')} MB`;
+const count = (n: number) => n.toLocaleString('en-US');
+/** Whole MiB: a need is rounded up, what there is rounded down, so a printed need above a printed supply is always a real shortfall. */
+const needMib = (n: number) => Math.ceil(n / MIB);
+const haveMib = (n: number) => Math.floor(n / MIB);
+const mib = (n: number) => `${count(needMib(n))} MiB`;
 
 /** What to do for this estimate, given the heap limit and the memory of the machine. */
 export function planHeap(e: MemoryEstimate, limits: { heapLimit: number; physical: number; limitGiven: boolean; reexeced: boolean }): HeapPlan {
   const biggest = [...e.files].sort((a, b) => b.heap + b.offHeap - (a.heap + a.offHeap))[0];
-  const about = e.files.map((f) => `${f.path} (${mb(f.bytes)}, about ${f.rows.toLocaleString('en-US')} rows)`).join(', ');
+  const about = e.files.map((f) => `${f.path} (${mib(f.bytes)}, about ${count(f.rows)} rows)`).join(', ');
   const location = biggest ? { file: biggest.path } : {};
-  const heapNeed = e.heap * 1.25;
-  if (heapNeed + e.offHeap > limits.physical * 0.9) {
+  const heapNeed = e.heap * HEAP_MARGIN;
+  const usable = limits.physical * MEMORY_SHARE;
+  if (heapNeed + e.offHeap > usable) {
+    // State the very sum that is compared: the heap with its margin plus memory outside the heap,
+    // against the usable share of the memory (the parts are rounded up, so they add up as printed).
+    const heapPart = needMib(heapNeed);
+    const offPart = needMib(e.offHeap);
+    const message =
+      `the inputs are too large for this machine: ${about} need about ${count(heapPart + offPart)} MiB of memory ` +
+      `(${count(heapPart)} MiB of JavaScript heap, which is the estimate of ${mib(e.heap)} plus ${Math.round((HEAP_MARGIN - 1) * 100)} % for the garbage collector, ` +
+      `and ${count(offPart)} MiB outside the heap), more than the ${count(haveMib(usable))} MiB a run may use here ` +
+      `(${Math.round(MEMORY_SHARE * 100)} % of the ${count(haveMib(limits.physical))} MiB of memory)`;
     return {
       action: 'refuse',
-      error: new InputError('input_too_large', `the inputs are too large for this machine: ${about} need about ${mb(e.heap + e.offHeap)} of memory, and ${mb(limits.physical)} is all there is`, {
+      error: new InputError('input_too_large', message, {
         location,
         fix: 'run on a machine with more memory, or split the release (e.g. by category) and compare the parts; TERMDRIFT_MEMORY_CHECK=off skips this estimate (docs/RELIABILITY.md)',
       }),
@@ -164,14 +184,14 @@ export function planHeap(e: MemoryEstimate, limits: { heapLimit: number; physica
   if (limits.limitGiven || limits.reexeced) {
     return {
       action: 'refuse',
-      error: new InputError('input_too_large', `the inputs need about ${mb(heapNeed)} of JavaScript heap (${about}); the heap limit is ${mb(limits.heapLimit)}${limits.limitGiven ? ' (set by --max-old-space-size)' : ''}`, {
+      error: new InputError('input_too_large', `the inputs need about ${mib(heapNeed)} of JavaScript heap (${about}; the estimate plus ${Math.round((HEAP_MARGIN - 1) * 100)} % for the garbage collector); the heap limit is ${count(haveMib(limits.heapLimit))} MiB${limits.limitGiven ? ' (set by --max-old-space-size)' : ''}`, {
         location,
         fix: `raise it, e.g. NODE_OPTIONS=--max-old-space-size=${Math.ceil(heapNeed / MIB)}, or leave it unset and termdrift sets it; TERMDRIFT_MEMORY_CHECK=off skips this estimate`,
       }),
     };
   }
   // Heap to give: what the inputs need with room for the collector, within what the machine has.
-  const room = limits.physical * 0.9 - e.offHeap;
+  const room = usable - e.offHeap;
   return { action: 'reexec', heapMb: Math.ceil(Math.min(room, Math.max(heapNeed * 1.5, limits.heapLimit)) / MIB) };
 }
 
@@ -209,9 +229,9 @@ export function guardMemory(files: InputFile[], env: NodeJS.ProcessEnv = process
     stdio: 'inherit',
     env: { ...env, TERMDRIFT_HEAP_REEXEC: '1' },
   });
-  if (r.error) throw new InputError('input_too_large', `could not run again with a larger heap (${plan.heapMb} MB): ${r.error.message}`, { fix: `set NODE_OPTIONS=--max-old-space-size=${plan.heapMb} yourself` });
+  if (r.error) throw new InputError('input_too_large', `could not run again with a larger heap (${plan.heapMb} MiB): ${r.error.message}`, { fix: `set NODE_OPTIONS=--max-old-space-size=${plan.heapMb} yourself` });
   if (r.signal) {
-    throw new InputError('input_too_large', `the run with a ${plan.heapMb} MB heap was stopped by ${r.signal}, most likely for want of memory`, {
+    throw new InputError('input_too_large', `the run with a ${plan.heapMb} MiB heap was stopped by ${r.signal}, most likely for want of memory`, {
       fix: 'run on a machine with more memory, or split the release and compare the parts (docs/RELIABILITY.md)',
     });
   }

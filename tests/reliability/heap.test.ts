@@ -5,11 +5,11 @@
  * nothing unless standard error is a terminal and a phase has lasted a second).
  */
 import { describe, expect, it } from 'vitest';
-import { writeFileSync } from 'node:fs';
+import { statSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { Writable } from 'node:stream';
 import { gzipSync } from 'node:zlib';
-import { BASE_COST, estimateFile, estimateMemory, inputFilesOf, planHeap, ROW_COST } from '../../src/cli/heap.js';
+import { BASE_COST, estimateFile, estimateMemory, HEAP_MARGIN, inputFilesOf, MEMORY_SHARE, planHeap, ROW_COST, SMALL_INPUTS } from '../../src/cli/heap.js';
 import { createProgress, SILENT } from '../../src/cli/progress.js';
 import { loadHierarchy, loadMappings, loadRelease } from '../../src/load/index.js';
 import { tempDir } from '../helpers/files.js';
@@ -84,6 +84,39 @@ describe('planHeap', () => {
     }
   });
 
+  it('states the figures it compares when the machine is too small: heap with its margin plus outside the heap, against 90 % of the memory', () => {
+    // Heap + outside (6 + 7 = 13 GiB) is below the 16 GiB of memory, yet the run cannot be
+    // planned: 6 × 1.25 + 7 = 14.5 GiB is above 90 % of 16 GiB = 14.4 GiB. The message must
+    // not read as if it would fit.
+    expect([HEAP_MARGIN, MEMORY_SHARE]).toEqual([1.25, 0.9]);
+    const plan = planHeap(estimate(6 * GIB, 7 * GIB), limits);
+    expect(plan.action).toBe('refuse');
+    const message = (plan as { error: { code: string; message: string } }).error.message;
+    const n = (s: string) => Number(s.replace(/,/g, ''));
+    const m = /need about ([\d,]+) MiB of memory \(([\d,]+) MiB of JavaScript heap, which is the estimate of ([\d,]+) MiB plus 25 % for the garbage collector, and ([\d,]+) MiB outside the heap\), more than the ([\d,]+) MiB a run may use here \(90 % of the ([\d,]+) MiB of memory\)/.exec(message);
+    expect(m, message).not.toBeNull();
+    const [need, heapWithMargin, heapEstimate, outside, usable, total] = m!.slice(1).map(n);
+    expect(heapEstimate).toBe(6 * 1024);
+    expect(heapWithMargin).toBe(6 * 1024 * 1.25);
+    expect(outside).toBe(7 * 1024);
+    expect(need).toBe(heapWithMargin + outside);
+    expect(total).toBe(16 * 1024);
+    expect(usable).toBe(Math.floor(16 * 1024 * 0.9));
+    // The figures as printed say what the check found: the need is above what a run may use.
+    expect(need).toBeGreaterThan(usable);
+    expect(heapEstimate + outside).toBeLessThan(total);
+  });
+
+  it('rounds a need up and the memory there is down, so a need just above the limit never prints as equal to it', () => {
+    // 90 % of 10,000.5 MiB is 9,000.45 MiB; the need is 9,000.5 MiB, just above it.
+    const physical = 10_000.5 * MIB;
+    const plan = planHeap(estimate(0, 9_000.5 * MIB), { ...limits, physical });
+    expect(plan.action).toBe('refuse');
+    const message = (plan as { error: { message: string } }).error.message;
+    expect(message).toContain('need about 9,001 MiB of memory');
+    expect(message).toContain('more than the 9,000 MiB a run may use here (90 % of the 10,000 MiB of memory)');
+  });
+
   it('adds the base cost to the inputs', () => {
     expect(estimateMemory([]).heap).toBe(BASE_COST.heap);
   });
@@ -92,12 +125,15 @@ describe('planHeap', () => {
 describe('the CLI with a heap too small for its inputs', () => {
   it('stops before reading, with exit 2 and the estimate, not an out-of-memory abort', () => {
     const dir = tempDir('termdrift-heap-');
-    // 1.2 million rows (about 70 MB): above the size where the estimate is made.
+    // 1.2 million rows, 63,400,043 bytes (60.5 MiB), given twice: 121 MiB of input in all, above
+    // SMALL_INPUTS (64 MiB), the size from which the estimate is made.
     const path = join(dir, 'big.tsv');
     writeFileSync(path, releaseText(1_200_000));
+    expect(statSync(path).size).toBe(63_400_043);
+    expect(2 * statSync(path).size).toBeGreaterThan(SMALL_INPUTS);
     const r = runCli(['diff', path, path], { env: { NODE_OPTIONS: '--max-old-space-size=64' } });
     expectCleanExit(r, 2);
-    expect(r.stderr).toMatch(/^termdrift: .*big\.tsv: the inputs need about [\d,]+ MB of JavaScript heap/);
+    expect(r.stderr).toMatch(/^termdrift: .*big\.tsv: the inputs need about [\d,]+ MiB of JavaScript heap/);
     expect(r.stderr).toContain('--max-old-space-size');
     expect(r.stdout).toBe('');
   });
