@@ -14,18 +14,21 @@
  *  - paths given on the command line are files, never options, code or shell: names such as
  *    `--help`, `-x`, `$(touch pwned)`, `file;rm`, spaces and non-ASCII letters, after `--`.
  *  - the state folder of `check --state` is 0700 and its files 0600.
- *  - no network: the demo runs with every socket, DNS lookup and HTTP(S) request made to throw
- *    (a preload given with NODE_OPTIONS=--require), and inside `unshare -n` (a network namespace
- *    with no interface but loopback down) when the tests run as root.
+ *  - no network: the demo, and every other command on local files (validate, diff, check,
+ *    apply, history, import), runs with every socket, DNS lookup and HTTP(S) request made to
+ *    throw (a preload given with NODE_OPTIONS=--require) and gives the same output as without
+ *    it; the demo also runs inside `unshare -n` (a network namespace with no interface but
+ *    loopback down) when the tests run as root.
  */
 import { describe, expect, it } from 'vitest';
 import { spawnSync } from 'node:child_process';
-import { readdirSync, readFileSync, statSync, writeFileSync, copyFileSync } from 'node:fs';
+import { existsSync, readdirSync, readFileSync, statSync, writeFileSync, copyFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { parse } from 'parse5';
 import { parse as parseCsv } from 'csv-parse/sync';
+import { stringify as stringifyCsv } from 'csv-stringify/sync';
 import { tempDir } from '../helpers/files.js';
-import { DEMO, MAIN, expectCleanExit, runCli } from './cli.js';
+import { DEMO, MAIN, expectCleanExit, runCli, type CliRun } from './cli.js';
 
 const HOSTILE = resolve('tests/reliability/hostile');
 const hostileArgs = (format: string) => ['check', join(HOSTILE, 'release-r1.tsv'), join(HOSTILE, 'release-r2.tsv'), '--mappings', join(HOSTILE, 'mappings.csv'), '--no-state', '--format', format];
@@ -209,6 +212,20 @@ describe('no network access', () => {
       expect(r.status, code).not.toBe(0);
       expect(r.stderr, code).toContain('termdrift test: network access attempted');
     }
+    // termdrift is ES modules: named imports of the built-ins must be replaced too.
+    const esm = (code: string) => spawnSync(process.execPath, ['--require', preload, '--input-type=module', '-e', code], { encoding: 'utf8' });
+    for (const code of [
+      "import { connect } from 'node:net'; connect(80, '127.0.0.1');",
+      "import { request } from 'node:http'; request('http://127.0.0.1/');",
+      "import { get } from 'node:https'; get('https://127.0.0.1/');",
+      "import { lookup } from 'node:dns/promises'; await lookup('example.org');",
+      "import { connect } from 'node:http2'; connect('http://127.0.0.1/');",
+      "import { createSocket } from 'node:dgram'; createSocket('udp4');",
+    ]) {
+      const r = esm(code);
+      expect(r.status, code).not.toBe(0);
+      expect(r.stderr, code).toContain('termdrift test: network access attempted');
+    }
   });
 
   it.each(formats)('the demo (--format %s) gives the same output with the network made unreachable', (format) => {
@@ -216,6 +233,83 @@ describe('no network access', () => {
     expectCleanExit(r, 0);
     expect(r.stdout).toBe(normal[format].stdout);
   });
+
+  /**
+   * The other commands, in the order of a review, each on local files only: validate (a release
+   * and a mapping set), diff, check (recording its run in the state folder .termdrift/ and
+   * writing the worklist), apply (on the worklist with decisions filled in), history (text and
+   * JSON), and import from a local copy of a published release: the IANA Language Subtag
+   * Registry, File-Date 2014-03-13, as packaged by npm language-subtag-registry@0.3.2 (the
+   * devDependency `lsr-2014`). Run in a fresh folder, with `env` added to the environment and,
+   * with `unshare`, each command inside `unshare -n`; returns each step's standard output and
+   * every file the steps wrote.
+   */
+  function session(env: Record<string, string>, unshare = false): { outputs: Record<string, string>; files: Record<string, string> } {
+    const cwd = tempDir('termdrift-offline-');
+    const demo = (f: string) => join(DEMO, f);
+    const releases = [demo('release-r1.tsv'), demo('release-r2.tsv'), '--old-hierarchy', demo('hierarchy-r1.tsv'), '--new-hierarchy', demo('hierarchy-r2.tsv'), '--history', demo('history-r2.tsv')];
+    const outputs: Record<string, string> = {};
+    const step = (name: string, args: string[]) => {
+      let r: CliRun;
+      if (unshare) {
+        const u = spawnSync('unshare', ['-n', process.execPath, MAIN, ...args], { cwd, encoding: 'utf8', maxBuffer: 1 << 28, env: { ...process.env, NO_COLOR: '1', TERMDRIFT_DEBUG: '', ...env } });
+        r = { args, status: u.status, signal: u.signal, stdout: String(u.stdout), stderr: String(u.stderr) };
+      } else r = runCli(args, { cwd, env });
+      expectCleanExit(r, 0);
+      outputs[name] = r.stdout;
+    };
+    step('validate release', ['validate', '--kind', 'release', demo('release-r2.tsv'), '--format', 'json']);
+    step('validate mapping', ['validate', '--kind', 'mapping', demo('mappings.tsv')]);
+    step('diff', ['diff', ...releases, '--format', 'json']);
+    step('check', ['check', ...releases, '--mappings', demo('mappings.tsv'), '--format', 'csv', '--out', 'worklist.csv']);
+    // Decisions: accept every proposed redirect, keep every changed context.
+    const worklist = parseCsv(readFileSync(join(cwd, 'worklist.csv'), 'utf8'), { columns: true }) as Record<string, string>[];
+    let decided = 0;
+    for (const row of worklist) {
+      if (row.verdict === 'redirect' && row.proposed_target) row.decision = 'accept';
+      else if (row.verdict === 'context_changed') row.decision = 'keep';
+      else continue;
+      row.reviewer = 'Offline test';
+      decided++;
+    }
+    expect(decided).toBeGreaterThan(3);
+    writeFileSync(join(cwd, 'worklist-filled.csv'), stringifyCsv(worklist, { header: true, columns: Object.keys(worklist[0]) }));
+    step('apply', ['apply', 'worklist-filled.csv', '--mappings', demo('mappings.tsv'), '--out', 'mappings-r2.tsv', '--audit', 'audit.csv', '--now', '2026-03-01T10:00:00Z']);
+    step('history', ['history']);
+    step('history json', ['history', '--format', 'json']);
+    const registry = resolve('node_modules/lsr-2014');
+    expect(existsSync(registry)).toBe(true);
+    step('import', ['import', 'language-subtags', registry, '--out', 'imported']);
+    const files: Record<string, string> = {};
+    for (const f of readdirSync(cwd, { recursive: true, encoding: 'utf8' }).sort()) {
+      if (statSync(join(cwd, f)).isFile()) files[f] = readFileSync(join(cwd, f), 'utf8');
+    }
+    return { outputs, files };
+  }
+
+  let plainSession: ReturnType<typeof session> | undefined;
+  const plain = () => (plainSession ??= session({}));
+
+  it('validate, diff, check, apply, history and import work with the network made unreachable, with the same output', () => {
+    const log = join(tempDir('termdrift-offline-log-'), 'preload.log');
+    const offline = session({ NODE_OPTIONS: `--require ${preload}`, NO_NETWORK_LOG: log });
+    // The preload was in force in every run (one process each: no input is large enough to
+    // make termdrift run itself again), and nothing tried the network and went on.
+    const lines = readFileSync(log, 'utf8').trim().split('\n');
+    expect(lines.filter((l) => l.startsWith('attempt'))).toEqual([]);
+    const commands = lines.map((l) => l.split(' ')[2]);
+    expect(commands).toEqual(['validate', 'validate', 'diff', 'check', 'apply', 'history', 'history', 'import']);
+    expect(Object.keys(offline.outputs)).toHaveLength(8);
+    expect(offline.outputs).toEqual(plain().outputs);
+    // The files each step wrote: the worklist, the updated mapping set, the audit log, the state
+    // folder, the imported tables.
+    for (const f of ['worklist.csv', 'mappings-r2.tsv', 'audit.csv', join('.termdrift', 'index.json'), join('imported', 'release.tsv'), join('imported', 'history.tsv'), join('imported', 'hierarchy.tsv')]) {
+      expect(Object.keys(offline.files), f).toContain(f);
+    }
+    expect(offline.files).toEqual(plain().files);
+    expect(offline.outputs.history).toContain('1 run, 2 releases');
+    expect(offline.files['audit.csv'].trim().split('\n').length).toBeGreaterThan(3);
+  }, 300_000);
 
   const root = process.getuid?.() === 0 && spawnSync('unshare', ['-n', 'true']).status === 0;
   it.runIf(root)('the demo runs inside a network namespace with no network (unshare -n)', () => {
@@ -225,5 +319,12 @@ describe('no network access', () => {
       expect(r.stdout).toBe(normal[format].stdout);
     }
   });
+
+  it.runIf(root)('validate, diff, check, apply, history and import run inside a network namespace with no network (unshare -n), with the same output', () => {
+    const isolated = session({}, true);
+    expect(Object.keys(isolated.outputs)).toHaveLength(8);
+    expect(isolated.outputs).toEqual(plain().outputs);
+    expect(isolated.files).toEqual(plain().files);
+  }, 300_000);
 
 });
