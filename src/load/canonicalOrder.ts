@@ -160,6 +160,7 @@ export function applyCanonicalOrder(r: Release, bytes: ReleaseBytes, rebuildInde
   bytes.textCache = undefined;
   bytes.idCache = undefined;
   bytes.indexCache = undefined;
+  bytes.idsInStringOrder = undefined;
   rebuildIndex(r);
   return true;
 }

@@ -147,6 +147,8 @@ export class ReleaseBytes {
   idCache: string[] | undefined;
   indexCache: Map<string, number> | undefined;
   private readonly views: DataView[] = [];
+  /** Are conceptIds in strictly increasing string order? Found on the first lookup; reset when they are renumbered. */
+  idsInStringOrder: boolean | undefined;
   /** Set when a consumer assigned the property: the bytes no longer describe it. */
   textReplaced = false;
   idReplaced = false;
@@ -238,6 +240,21 @@ export class ReleaseBytes {
 
   /** Concept with this id, or -1 (no Map is built). */
   conceptOf(id: string): number {
+    // Ids in increasing string order (the canonical order, and any file sorted by id): a binary
+    // search over the id strings, no encoding of the id. Checked once, on the first lookup.
+    const ids = this.conceptIds;
+    if ((this.idsInStringOrder ??= inStringOrder(ids))) {
+      let lo = 0;
+      let hi = ids.length - 1;
+      while (lo <= hi) {
+        const mid = (lo + hi) >>> 1;
+        const v = ids[mid];
+        if (v === id) return mid;
+        if (v < id) lo = mid + 1;
+        else hi = mid - 1;
+      }
+      return -1;
+    }
     const need = id.length * 3;
     if (scratch.length < need) scratch = Buffer.allocUnsafe(Math.max(need, scratch.length * 2));
     const len = scratch.write(id, 0, 'utf8');
@@ -246,6 +263,11 @@ export class ReleaseBytes {
 }
 
 let scratch = Buffer.allocUnsafe(256);
+
+function inStringOrder(ids: readonly string[]): boolean {
+  for (let c = 1; c < ids.length; c++) if (!(ids[c - 1] < ids[c])) return false;
+  return true;
+}
 
 const storage = new WeakMap<object, ReleaseBytes>();
 

@@ -26,8 +26,9 @@
  */
 import type { Hierarchy, Release } from '../load/types.js';
 import { ACTIVE } from '../load/types.js';
-import { foldTerm, lexicalKey } from '../text/normalize.js';
-import { termTextAt } from '../load/releaseBytes.js';
+import { STOP_WORDS, foldTerm, lexicalKey, lexicalKeyOfFolded, stemToken } from '../text/normalize.js';
+import { AsciiTokens } from '../text/asciiTokens.js';
+import { termTextAt, termTextBytes } from '../load/releaseBytes.js';
 import { jaroWinkler, levenshteinSimilarity, trigramDice } from '../text/similarity.js';
 import { DocumentFrequencies, tfidfCosine } from '../text/tfidf.js';
 
@@ -54,7 +55,7 @@ export interface TextForms {
 export function textForms(text: string): TextForms {
   const folded = foldTerm(text);
   // foldTerm is a fixed point, so the key of the folded form is the key of the text.
-  const lexical = lexicalKey(folded);
+  const lexical = lexicalKeyOfFolded(folded);
   return { text, nfc: text.normalize('NFC'), folded, lexical, stems: lexical === '' ? [] : lexical.split(' ') };
 }
 
@@ -81,8 +82,38 @@ export function releaseDocumentFrequencies(r: Release, maxTerms = 100_000): Docu
     if (r.termStatus[t] === ACTIVE && r.conceptStatus[r.termConcept[t]] === ACTIVE) active.push(t);
   }
   const step = Math.max(1, active.length / maxTerms);
+  // Plain ASCII terms are tokenised from the release's bytes (text/asciiTokens.ts); the stems of
+  // their non-stop tokens are the lexical key's (df counts each stem once per term, so the key's
+  // sorting does not matter). A term of stop words only, and any other term, goes through lexicalKey.
+  const raw = termTextBytes(r);
+  /** Stem of each distinct token ('' for a stop word), by the token's value in `ascii`. */
+  const stemIds: string[] = [];
+  const ascii = new AsciiTokens((token) => {
+    stemIds.push(STOP_WORDS.has(token) ? '' : stemToken(token));
+    return stemIds.length - 1;
+  });
+  const stems: string[] = [];
   for (let i = 0; i < active.length; i += step) {
-    const key = lexicalKey(termTextAt(r, active[Math.floor(i)]));
+    const t = active[Math.floor(i)];
+    if (raw) {
+      const n = ascii.tokens(raw.blocks[raw.termBlock[t]], raw.textStart[t], raw.textEnd[t]);
+      if (n === 0) {
+        df.add([]);
+        continue;
+      }
+      if (n > 0) {
+        stems.length = 0;
+        for (let k = 0; k < n; k++) {
+          const stem = stemIds[ascii.out[k]];
+          if (stem !== '') stems.push(stem);
+        }
+        if (stems.length > 0) {
+          df.add(stems);
+          continue;
+        }
+      }
+    }
+    const key = lexicalKey(termTextAt(r, t));
     df.add(key === '' ? [] : key.split(' '));
   }
   return df;
@@ -133,7 +164,7 @@ export class ReleaseFeatures {
 
   private static fillLexical(e: TermEntry): void {
     if (e.lexical === undefined) {
-      e.lexical = lexicalKey(e.folded);
+      e.lexical = lexicalKeyOfFolded(e.folded);
       e.stems = e.lexical === '' ? [] : e.lexical.split(' ');
     }
   }

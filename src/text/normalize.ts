@@ -309,7 +309,15 @@ export function stemToken(token: string): string {
  * empty key.
  */
 export function lexicalKey(s: string): string {
-  const folded = foldTerm(s);
+  return lexicalKeyOfFolded(foldTerm(s));
+}
+
+/**
+ * {@link lexicalKey} of a string that is already the output of {@link foldTerm} (a fixed point
+ * of it, so folding again would change nothing): spares the second fold where the folded form is
+ * at hand.
+ */
+export function lexicalKeyOfFolded(folded: string): string {
   if (folded === '') return '';
   const tokens = tokenize(folded);
   const stems: string[] = [];

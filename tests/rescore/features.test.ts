@@ -105,3 +105,25 @@ describe('context features', () => {
     expect([...x.slice(LEXICAL_COUNT)]).toEqual([0, 0, 0, 0]);
   });
 });
+
+describe('document frequencies from the release bytes', () => {
+  it('count the same stems as the lexical keys of every sampled term (plain, punctuated, other scripts, stop words only)', async () => {
+    const spec = `
+A disorder: Heart attack* | Attacks of the heart | heart, attack (acute) | The
+B disorder: Fracture of femur* | Femoral fracture | Rh+ fracture | 0.5 mg femur
+C finding: Ménière disease* | Crohn's disease | Disease of the heart | of the
+`;
+    const r = (await loadPair({ old: spec, new: spec })).old;
+    const { lexicalKey } = await import('../../src/text/normalize.js');
+    const { DocumentFrequencies } = await import('../../src/text/tfidf.js');
+    const expected = new DocumentFrequencies();
+    for (let t = 0; t < r.termCount; t++) {
+      const key = lexicalKey(r.termText[t]);
+      expected.add(key === '' ? [] : key.split(' '));
+    }
+    const got = releaseDocumentFrequencies(r);
+    expect(got.count).toBe(expected.count);
+    expect(got.vocabularySize).toBe(expected.vocabularySize);
+    for (const stem of ['heart', 'attack', 'fractur', 'femur', 'diseas', 'the', 'rh+', '0.5', 'menier', 'crohn']) expect([stem, got.frequency(stem)]).toEqual([stem, expected.frequency(stem)]);
+  });
+});
