@@ -27,16 +27,18 @@ export interface InputFile {
 }
 
 /**
- * Bytes per row, measured on generated releases of 0.25, 1 and 16 million rows (peak heap used
- * and peak memory outside the heap of `diff` and `check`, sampled every 20 ms; docs/RELIABILITY.md)
- * and rounded up by about half. `new_release` is the new release of `check`, on which the scorer
- * builds its index.
+ * Bytes per row, from peak heap used and peak memory outside the heap (external + array buffers,
+ * sampled every 20 ms) of `diff` and `check` on generated releases of 4 and 16 million rows each
+ * (docs/RELIABILITY.md, "16-million-row run"), rounded up by about half. Measured: a release row
+ * about 80 bytes of heap and 157 outside it beyond the file's own bytes, a hierarchy row about
+ * 120 bytes of heap, a mapping about 12 KB of heap in `check` (its scoring caches, the result and
+ * its share of the report). `new_release` is the new release of `check`; it measured as a release.
  */
 export const ROW_COST: Record<InputRole, { heap: number; offHeap: number }> = {
-  release: { heap: 160, offHeap: 500 },
-  new_release: { heap: 450, offHeap: 500 },
-  mapping: { heap: 700, offHeap: 0 },
-  hierarchy: { heap: 250, offHeap: 0 },
+  release: { heap: 120, offHeap: 240 },
+  new_release: { heap: 120, offHeap: 240 },
+  mapping: { heap: 15_000, offHeap: 0 },
+  hierarchy: { heap: 180, offHeap: 0 },
   history: { heap: 250, offHeap: 0 },
 };
 
