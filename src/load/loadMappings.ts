@@ -132,7 +132,14 @@ export async function loadMappings(path: string, options: LoadMappingsOptions = 
       }
       const lower = fields.map((f) => f.toLowerCase());
       sssom = lower.includes('subject_id') && lower.includes('object_id') && !lower.includes('local_code');
-      const renames = sssom ? { ...SSSOM_COLUMNS, ...options.columns } : options.columns;
+      // SSSOM has no slot for usage or an owning team, so these come from extension slots
+      // (declared in extension_definitions): `usage` (what termdrift's SSSOM export writes) or
+      // else `usage_count`; the owner is author_id, else an `owner` slot (what the export writes:
+      // author_id takes CURIEs, not department names).
+      const sssomRenames: Record<string, string> = { ...SSSOM_COLUMNS };
+      if (!lower.includes('usage') && lower.includes('usage_count')) sssomRenames.usage = 'usage_count';
+      if (!lower.includes('author_id') && lower.includes('owner')) sssomRenames.owner = 'owner';
+      const renames = sssom ? { ...sssomRenames, ...options.columns } : options.columns;
       const r = resolveColumns(path, fields, line, MAPPING_COLUMNS, renames);
       idx = r.index;
       extra = r.extra;

@@ -114,8 +114,8 @@ describe('SSSOM export', () => {
     expect(back.format).toBe('sssom');
     expect(back.accounting.rejected).toBe(0);
     // owner travels as the extension slot `owner` (SSSOM's author_id takes CURIEs, not department
-    // names); loadMappings keeps it among the extra columns.
-    expect(back.mappings.map((m) => [m.localCode.replace(/^FHGH:/, ''), m.localLabel, m.targetId.replace(/^QCV:/, ''), m.relation, m.usage, m.extra.owner])).toEqual(set.mappings.map((m) => [m.localCode, m.localLabel, m.targetId, m.relation, m.usage, m.owner]));
+    // names); loadMappings reads that slot back as the owner.
+    expect(back.mappings.map((m) => [m.localCode.replace(/^FHGH:/, ''), m.localLabel, m.targetId.replace(/^QCV:/, ''), m.relation, m.usage, m.owner])).toEqual(set.mappings.map((m) => [m.localCode, m.localLabel, m.targetId, m.relation, m.usage, m.owner]));
   });
 
   it('marks reviewed rows semapv:MappingReview, with the reviewer, the note and the new object label', async () => {

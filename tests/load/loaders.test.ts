@@ -134,3 +134,25 @@ describe('loadHierarchy and loadHistory', () => {
     expect(h.diagnostics.map((d) => d.code)).toEqual(['bad_value']);
   });
 });
+
+describe('SSSOM extension slots for usage and owner', () => {
+  it('the demo SSSOM set (usage_count and owner declared in extension_definitions) gives the same usage and owner as the plain TSV set', async () => {
+    const sssom = await loadMappings('demo-data/mappings.sssom.tsv');
+    const plain = new Map((await loadMappings('demo-data/mappings.tsv')).mappings.map((m) => [m.localCode, m]));
+    expect(sssom.mappings.length).toBe(plain.size);
+    for (const m of sssom.mappings) {
+      const p = plain.get(m.localCode.replace(/^FHGH:/, ''))!;
+      expect([m.localCode, m.usage, m.owner]).toEqual([m.localCode, p.usage, p.owner]);
+    }
+    expect(sssom.mappings.some((m) => m.usage > 1)).toBe(true);
+    expect(Object.keys(sssom.mappings[0].extra)).not.toContain('usage_count');
+  });
+
+  it('a usage slot wins over usage_count, and author_id over owner', async () => {
+    const dir = tempDir();
+    const meta = '#curie_map:\n#  L: https://example.org/l/\n#  C: https://example.org/c/\n#mapping_set_id: https://example.org/set\n#license: https://creativecommons.org/publicdomain/zero/1.0/\n';
+    const path = writeFile(dir, 'm.sssom.tsv', meta + 'subject_id\tobject_id\tpredicate_id\tmapping_justification\tusage\tusage_count\tauthor_id\towner\nL:1\tC:9\tskos:exactMatch\tsemapv:ManualMappingCuration\t7\t99\torcid:1\tLab\n');
+    const [m] = (await loadMappings(path)).mappings;
+    expect([m.usage, m.owner, m.extra.usage_count, m.extra.owner]).toEqual([7, 'orcid:1', '99', 'Lab']);
+  });
+});
