@@ -18,7 +18,7 @@
  * the concept ids, a counting sort of the terms by concept and a sort within each concept (insertion
  * sort for the usual few terms), then one permutation of every column. No string is made per term.
  */
-import { hashBytes, rehashConcepts, type ReleaseBytes } from './releaseBytes.js';
+import { hashConceptIds, rehashConcepts, type ReleaseBytes } from './releaseBytes.js';
 import { PREFERRED, SYNONYM, type Hierarchy, type HistoryRow, type HistoryTable, type Release } from './types.js';
 
 /** Compare buf a[as..ae) with b[bs..be) as unsigned bytes. */
@@ -139,7 +139,7 @@ export function applyCanonicalOrder(r: Release, bytes: ReleaseBytes, rebuildInde
     byteSorted = compareBytes(table.blocks[table.block[c - 1]], table.start[c - 1], table.end[c - 1], table.blocks[table.block[c]], table.start[c], table.end[c]) < 0;
   }
   if (!byteSorted) {
-    if (table.sorted) for (let c = 0; c < n; c++) table.hash[c] = hashBytes(table.blocks[table.block[c]], table.start[c], table.end[c]);
+    if (table.sorted) hashConceptIds(table, n);
     table.table = rehashConcepts(table.hash, n, table.table.length);
   }
   table.sorted = byteSorted;

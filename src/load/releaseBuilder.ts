@@ -23,7 +23,7 @@ import { quoteValue, type RowLedger } from './ledger.js';
 import { resolveColumns, type ColumnRenames, type ColumnSpec } from './columns.js';
 import { Interner, clean } from './growable.js';
 import { ACTIVE, INACTIVE, PREFERRED, SYNONYM } from './types.js';
-import { compareBytes, hashBytes, probeConcept, rehashConcepts, viewOf, viewsEqual, type ConceptTable } from './releaseBytes.js';
+import { compareBytes, hashBytes, hashConceptIds, probeConcept, rehashConcepts, viewOf, viewsEqual, type ConceptTable } from './releaseBytes.js';
 
 export const RELEASE_COLUMNS: readonly ColumnSpec[] = [
   { name: 'concept_id', required: true },
@@ -506,7 +506,7 @@ export class ReleaseBuilder {
       if (cmp < 0) return -1;
       if (cmp === 0) return last;
       t.sorted = false;
-      for (let c = 0; c < this.conceptCount; c++) t.hash[c] = hashBytes(t.blocks[t.block[c]], t.start[c], t.end[c]);
+      hashConceptIds(t, this.conceptCount);
       t.table = rehashConcepts(t.hash, this.conceptCount, Math.max(this.conceptCap * 2, 1 << 15));
     }
     const h = hashBytes(buf, s, e);

@@ -116,6 +116,11 @@ export function findConcept(t: ConceptTable, count: number, buf: Uint8Array, s: 
   return -1;
 }
 
+/** Fill t.hash for concepts 0..count-1 (a sorted table never computed them). */
+export function hashConceptIds(t: ConceptTable, count: number): void {
+  for (let c = 0; c < count; c++) t.hash[c] = hashBytes(t.blocks[t.block[c]], t.start[c], t.end[c]);
+}
+
 /** A table of at least twice `count` slots (a power of two) holding concepts 0..count-1. */
 export function rehashConcepts(hash: Int32Array, count: number, minSlots: number): Int32Array {
   let size = 1 << 10;
