@@ -14,7 +14,9 @@
  * Scores are IDF-weighted Dice overlaps of word sets (0..1); the best term of each concept counts.
  * Words on more than `maxPosting` terms are too common to generate candidates; candidates found by
  * the rarer words are then scored on every query word through a forward index (term → words). A
- * query of common words only is searched by its rarest word. Built lazily, once per release, and only when something needs it.
+ * query of common words only takes the terms holding its rarest word, narrowed by intersecting
+ * with its next rarest words (fromCommonWords). Built lazily, once per release, and only when
+ * something needs it.
  */
 import type { Release } from '../load/types.js';
 import { ACTIVE } from '../load/types.js';

@@ -97,15 +97,12 @@ export class AsciiTokens {
       this.arena = grown;
     }
     const at = this.arenaLength;
-    let token = '';
     for (let k = 0; k < len; k++) {
       const b = buf[s + k];
-      const lower = CLASS[b] === UPPER ? b | 0x20 : b;
-      this.arena[at + k] = lower;
+      this.arena[at + k] = CLASS[b] === UPPER ? b | 0x20 : b;
     }
     this.arenaLength += len;
-    token = String.fromCharCode.apply(null, this.arena.subarray(at, at + len) as unknown as number[]);
-    const value = this.resolve(token);
+    const value = this.resolve(String.fromCharCode(...this.arena.subarray(at, at + len)));
     const x = this.entries++;
     if (x === this.entryStart.length) this.growEntries();
     this.entryStart[x] = at;
