@@ -2,15 +2,21 @@
  * classifyChanges: run every detector over the diff context and return the changes in a
  * deterministic order (by kind, as CHANGE_KINDS lists them, then by id).
  */
-import { CHANGE_KINDS, type Change } from './types.js';
+import { CHANGE_KINDS, type Change, type ChangeKind } from './types.js';
 import { DETECTORS } from './detectors/index.js';
 import type { DiffContext } from './context.js';
 
+/**
+ * Kinds whose detectors search the new release's index run last: the index may still be being
+ * built in a worker thread (rescore/indexThread.ts). Detectors are independent of each other, so
+ * the order they run in changes nothing but the wait.
+ */
+const LAST: readonly ChangeKind[] = ['retirement'];
+
 export function classifyChanges(ctx: DiffContext): Change[] {
-  const out: Change[] = [];
-  for (const kind of CHANGE_KINDS) {
-    const found = (DETECTORS[kind].detect(ctx) as Change[]).sort((a, b) => (a.id < b.id ? -1 : a.id > b.id ? 1 : 0));
-    out.push(...found);
+  const found = new Map<ChangeKind, Change[]>();
+  for (const kind of [...CHANGE_KINDS.filter((k) => !LAST.includes(k)), ...LAST]) {
+    found.set(kind, (DETECTORS[kind].detect(ctx) as Change[]).sort((a, b) => (a.id < b.id ? -1 : a.id > b.id ? 1 : 0)));
   }
-  return out;
+  return CHANGE_KINDS.flatMap((kind) => found.get(kind)!);
 }

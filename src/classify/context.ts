@@ -21,7 +21,8 @@ import { alignTerms, activeTerms } from '../align/alignTerms.js';
 import type { Alignment } from '../align/types.js';
 import { foldTerm, lexicalKey } from '../text/normalize.js';
 import { levenshteinSimilarity, tokenJaccard } from '../text/similarity.js';
-import { ConceptIndex } from '../rescore/conceptIndex.js';
+import type { ConceptIndex } from '../rescore/conceptIndex.js';
+import { startConceptIndex } from '../rescore/indexThread.js';
 import { DEFAULT_THRESHOLDS, type Thresholds } from './thresholds.js';
 import type { FlowCell, HistoryEvidence } from './types.js';
 
@@ -179,6 +180,8 @@ export function buildContext(input: DiffInput): DiffContext {
   const thresholds = { ...DEFAULT_THRESHOLDS, ...input.thresholds };
   const oldR = input.old;
   const newR = input.new;
+  // Started first, so that on a second core it is built while the terms are aligned (rescore/indexThread.ts).
+  const newIndex = startConceptIndex(newR);
   const align = alignTerms(oldR, newR);
   const olds = new Map<number, OldNode>();
   const news = new Map<number, NewNode>();
@@ -287,11 +290,7 @@ export function buildContext(input: DiffInput): DiffContext {
     }
   }
 
-  let index: ConceptIndex | undefined;
-  return {
-    input, old: oldR, new: newR, align, thresholds, olds, news, groups,
-    newIndex: () => (index ??= new ConceptIndex(newR)),
-  };
+  return { input, old: oldR, new: newR, align, thresholds, olds, news, groups, newIndex };
 }
 
 /** Flow cells of a set of old concepts into a set of new concepts (active terms). */

@@ -93,10 +93,128 @@ function kthLargest(v: Float64Array, n: number, k: number): number {
   return v[k];
 }
 
+/**
+ * What building an index needs of a release: which terms to index, and their texts (as UTF-8
+ * byte ranges where the release keeps its file bytes, else through `text`). A plain object of
+ * typed arrays and buffers, so that a worker thread can build from it (indexThread.ts).
+ */
+export interface IndexSource {
+  termCount: number;
+  /** 1 for a term to index (active, of an active concept). */
+  active: Uint8Array;
+  bytes?: { blocks: readonly Uint8Array[]; termBlock: Int32Array; textStart: Int32Array; textEnd: Int32Array };
+  text(t: number): string;
+}
+
+/** The built index: vocabulary, postings (word → terms), forward index (term → words), weights. */
+export interface IndexParts {
+  words: string[];
+  /** postings of word w: terms[start[w] .. start[w+1]) */
+  start: Int32Array;
+  terms: Int32Array;
+  idfs: Float64Array;
+  termNorm: Float64Array;
+  termStart: Int32Array;
+  termWords: Int32Array;
+}
+
+/** The index source of a release. */
+export function indexSource(release: Release): IndexSource {
+  const active = new Uint8Array(release.termCount);
+  for (let t = 0; t < release.termCount; t++) {
+    if (release.conceptStatus[release.termConcept[t]] === ACTIVE && release.termStatus[t] === ACTIVE) active[t] = 1;
+  }
+  const raw = termTextBytes(release);
+  return { termCount: release.termCount, active, bytes: raw, text: (t) => termTextAt(release, t) };
+}
+
+/** Build an index (the work of the ConceptIndex constructor, and of the index thread). */
+export function buildIndexParts(src: IndexSource, onProgress?: (terms: number) => void): IndexParts {
+  const wordIds = new Map<string, number>();
+  const words: string[] = [];
+  const wordId = (word: string): number => {
+    let w = wordIds.get(word);
+    if (w === undefined) {
+      w = words.length;
+      words.push(word);
+      wordIds.set(word, w);
+    }
+    return w;
+  };
+  // Pass 1: words of every active term, as (word, term) pairs. Each distinct token is stemmed
+  // once: plain ASCII terms are tokenised from the loader's bytes (text/asciiTokens.ts, no
+  // string per term), the others through foldTerm with a folded-token cache.
+  const tokenWord = new Map<string, number>();
+  const wordOfToken = (token: string): number => {
+    let w = tokenWord.get(token);
+    if (w === undefined) {
+      w = STOP_WORDS.has(token) ? -1 : wordId(stemToken(token));
+      tokenWord.set(token, w);
+    }
+    return w;
+  };
+  const ascii = new AsciiTokens(wordOfToken);
+  const raw = src.bytes;
+  const termCount = src.termCount;
+  const pw = new GrowableInt32(1 << 16);
+  const pt = new GrowableInt32(1 << 16);
+  let active = 0;
+  const push = (w: number, t: number, first: number) => {
+    for (let k = first; k < pw.length; k++) if (pw.data[k] === w) return;
+    pw.push(w);
+    pt.push(t);
+  };
+  for (let t = 0; t < termCount; t++) {
+    if (onProgress !== undefined && (t & 0xffff) === 0) onProgress(t);
+    if (src.active[t] === 0) continue;
+    active++;
+    const first = pw.length;
+    if (raw) {
+      const n = ascii.tokens(raw.blocks[raw.termBlock[t]], raw.textStart[t], raw.textEnd[t]);
+      if (n === 0) continue; // spaces only: folds to ''
+      if (n > 0) {
+        for (let k = 0; k < n; k++) if (ascii.out[k] >= 0) push(ascii.out[k], t, first);
+        if (pw.length > first) continue;
+        // Stop words only: the folded text is the key, as below.
+      }
+    }
+    const folded = foldTerm(src.text(t));
+    if (folded === '') continue;
+    for (const token of folded.split(' ')) {
+      const w = wordOfToken(token);
+      if (w >= 0) push(w, t, first);
+    }
+    if (pw.length === first) { pw.push(wordId(folded)); pt.push(t); }
+  }
+  const pairWord = pw.data;
+  const pairTerm = pt.data;
+  const pairs = pw.length;
+  // Pass 2: compressed sparse rows.
+  const nWords = words.length;
+  const start = new Int32Array(nWords + 1);
+  for (let k = 0; k < pairs; k++) start[pairWord[k] + 1]++;
+  for (let w = 0; w < nWords; w++) start[w + 1] += start[w];
+  const fill = start.slice(0, nWords);
+  const terms = new Int32Array(pairs);
+  for (let k = 0; k < pairs; k++) terms[fill[pairWord[k]]++] = pairTerm[k];
+  const idfs = new Float64Array(nWords);
+  for (let w = 0; w < nWords; w++) idfs[w] = Math.log((active + 1) / (start[w + 1] - start[w] + 1)) + 1;
+  const termNorm = new Float64Array(termCount);
+  for (let k = 0; k < pairs; k++) termNorm[pairTerm[k]] += idfs[pairWord[k]];
+  // Forward index term → words, to score candidates on common words without scanning their postings.
+  const termStart = new Int32Array(termCount + 1);
+  for (let k = 0; k < pairs; k++) termStart[pairTerm[k] + 1]++;
+  for (let t = 0; t < termCount; t++) termStart[t + 1] += termStart[t];
+  const tFill = termStart.slice(0, termCount);
+  const termWords = new Int32Array(pairs);
+  for (let k = 0; k < pairs; k++) termWords[tFill[pairTerm[k]]++] = pairWord[k];
+  return { words, start, terms, idfs, termNorm, termStart, termWords };
+}
+
 export class ConceptIndex {
   readonly release: Release;
   private readonly wordIds = new Map<string, number>();
-  private readonly words: string[] = [];
+  private readonly words: string[];
   /** postings of word w: terms[start[w] .. start[w+1]) */
   private readonly start: Int32Array;
   private readonly terms: Int32Array;
@@ -108,6 +226,8 @@ export class ConceptIndex {
   /** Terms touched by the current query and their scores (reused between queries). */
   private touched = new Int32Array(1 << 14);
   private scores = new Float64Array(1 << 14);
+  /** The other buffer of fromCommonWords' intersections. */
+  private merged = new Int32Array(1 << 14);
   /** Query word → weight during one query (0 = not in the query); built on the first search. */
   private qWeight: Float64Array | undefined;
   private readonly termStart: Int32Array;
@@ -116,90 +236,22 @@ export class ConceptIndex {
   private readonly fuzzyCache = new Map<string, { w: number; weight: number }[]>();
   private readonly opts: Required<Omit<ConceptIndexOptions, 'maxPosting'>>;
 
-  constructor(release: Release, options: ConceptIndexOptions = {}) {
+  /** Build the index of `release`, or take `parts` built from its indexSource (e.g. by the index thread). */
+  constructor(release: Release, options: ConceptIndexOptions = {}, parts?: IndexParts) {
     this.release = release;
     this.opts = { fuzzyMin: options.fuzzyMin ?? 0.6, fuzzyMax: options.fuzzyMax ?? 3 };
-    // Pass 1: words of every active term, as (word, term) pairs. Each distinct token is stemmed
-    // once: plain ASCII terms are tokenised from the loader's bytes (text/asciiTokens.ts, no
-    // string per term), the others through foldTerm with a folded-token cache.
-    const tokenWord = new Map<string, number>();
-    const wordOfToken = (token: string): number => {
-      let w = tokenWord.get(token);
-      if (w === undefined) {
-        w = STOP_WORDS.has(token) ? -1 : this.wordId(stemToken(token));
-        tokenWord.set(token, w);
-      }
-      return w;
-    };
-    const ascii = new AsciiTokens(wordOfToken);
-    const raw = termTextBytes(release);
-    const pw = new GrowableInt32(1 << 16);
-    const pt = new GrowableInt32(1 << 16);
-    let active = 0;
-    const push = (w: number, t: number, first: number) => {
-      for (let k = first; k < pw.length; k++) if (pw.data[k] === w) return;
-      pw.push(w);
-      pt.push(t);
-    };
-    for (let t = 0; t < release.termCount; t++) {
-      if (release.conceptStatus[release.termConcept[t]] !== ACTIVE || release.termStatus[t] !== ACTIVE) continue;
-      active++;
-      const first = pw.length;
-      if (raw) {
-        const n = ascii.tokens(raw.blocks[raw.termBlock[t]], raw.textStart[t], raw.textEnd[t]);
-        if (n === 0) continue; // spaces only: folds to ''
-        if (n > 0) {
-          for (let k = 0; k < n; k++) if (ascii.out[k] >= 0) push(ascii.out[k], t, first);
-          if (pw.length > first) continue;
-          // Stop words only: the folded text is the key, as below.
-        }
-      }
-      const folded = foldTerm(termTextAt(release, t));
-      if (folded === '') continue;
-      for (const token of folded.split(' ')) {
-        const w = wordOfToken(token);
-        if (w >= 0) push(w, t, first);
-      }
-      if (pw.length === first) { pw.push(this.wordId(folded)); pt.push(t); }
-    }
-    const pairWord = pw.data;
-    const pairTerm = pt.data;
-    const pairs = pw.length;
-    // Pass 2: compressed sparse rows.
-    const nWords = this.words.length;
-    const start = new Int32Array(nWords + 1);
-    for (let k = 0; k < pairs; k++) start[pairWord[k] + 1]++;
-    for (let w = 0; w < nWords; w++) start[w + 1] += start[w];
-    const fill = start.slice(0, nWords);
-    const terms = new Int32Array(pairs);
-    for (let k = 0; k < pairs; k++) terms[fill[pairWord[k]]++] = pairTerm[k];
-    this.start = start;
-    this.terms = terms;
-    this.idfs = new Float64Array(nWords);
-    for (let w = 0; w < nWords; w++) this.idfs[w] = Math.log((active + 1) / (start[w + 1] - start[w] + 1)) + 1;
-    this.termNorm = new Float64Array(release.termCount);
-    for (let k = 0; k < pairs; k++) this.termNorm[pairTerm[k]] += this.idfs[pairWord[k]];
-    // Forward index term → words, to score candidates on common words without scanning their postings.
-    const tStart = new Int32Array(release.termCount + 1);
-    for (let k = 0; k < pairs; k++) tStart[pairTerm[k] + 1]++;
-    for (let t = 0; t < release.termCount; t++) tStart[t + 1] += tStart[t];
-    const tFill = tStart.slice(0, release.termCount);
-    const tWords = new Int32Array(pairs);
-    for (let k = 0; k < pairs; k++) tWords[tFill[pairTerm[k]]++] = pairWord[k];
-    this.termStart = tStart;
-    this.termWords = tWords;
+    const p = parts ?? buildIndexParts(indexSource(release));
+    if (p.termNorm.length !== release.termCount) throw new Error(`index parts of ${p.termNorm.length} terms given for a release of ${release.termCount}`);
+    this.words = p.words;
+    for (let w = 0; w < p.words.length; w++) this.wordIds.set(p.words[w], w);
+    this.start = p.start;
+    this.terms = p.terms;
+    this.idfs = p.idfs;
+    this.termNorm = p.termNorm;
+    this.termStart = p.termStart;
+    this.termWords = p.termWords;
     this.maxPosting = options.maxPosting ?? 2000;
     this.scratch = new Float64Array(release.termCount);
-  }
-
-  private wordId(word: string): number {
-    let w = this.wordIds.get(word);
-    if (w === undefined) {
-      w = this.words.length;
-      this.words.push(word);
-      this.wordIds.set(word, w);
-    }
-    return w;
   }
 
   /** Vocabulary words within `fuzzyMin` trigram-Dice of `word`, best first (not the word itself). */
@@ -269,10 +321,16 @@ export class ConceptIndex {
     const best = new Map<number, IndexHit>();
     const qWeight = (this.qWeight ??= new Float64Array(this.words.length));
     const concept = this.release.termConcept;
+    // Texts with the same word set (word-order variants, which synonyms often are) are one query.
+    const seen = new Set<string>();
     for (const text of texts) {
+      const queryWords = indexWords(text);
+      const key = [...queryWords].sort().join('\n');
+      if (seen.has(key)) continue;
+      seen.add(key);
       const query: { w: number; weight: number }[] = [];
       let qNorm = 0;
-      for (const word of indexWords(text)) {
+      for (const word of queryWords) {
         const w = this.wordIds.get(word);
         if (w !== undefined) {
           query.push({ w, weight: 1 });
@@ -380,7 +438,9 @@ export class ConceptIndex {
     let n = Math.min(this.start[w0 + 1] - s0, CANDIDATE_SCAN_MAX);
     let cur: Int32Array = this.ensureTouched(n);
     cur.set(this.terms.subarray(s0, s0 + n));
-    let next: Int32Array = new Int32Array(n);
+    if (this.merged.length < n) this.merged = new Int32Array(Math.max(n, this.merged.length * 2));
+    let next: Int32Array = this.merged;
+    const terms = this.terms;
     for (let q = 1; q < byRarity.length && n > CANDIDATES_FULL; q++) {
       const w = byRarity[q];
       let k = this.start[w];
@@ -388,8 +448,21 @@ export class ConceptIndex {
       let m = 0;
       for (let i = 0; i < n && k < end; i++) {
         const t = cur[i];
-        while (k < end && this.terms[k] < t) k++;
-        if (k < end && this.terms[k] === t) next[m++] = t;
+        if (terms[k] < t) {
+          // Gallop: the postings hold far more terms than survive, so skip ahead by doubling
+          // steps, then bisect (k ends on the first posting >= t, or at end).
+          let step = 1;
+          while (k + step < end && terms[k + step] < t) step *= 2;
+          let lo = k + (step >> 1) + 1;
+          let hi = Math.min(k + step, end);
+          while (lo < hi) {
+            const mid = (lo + hi) >>> 1;
+            if (terms[mid] < t) lo = mid + 1;
+            else hi = mid;
+          }
+          k = lo;
+        }
+        if (k < end && terms[k] === t) next[m++] = t;
       }
       if (m === 0) break;
       const swap = cur;
