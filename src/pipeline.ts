@@ -6,6 +6,7 @@
 import { loadHierarchy, loadHistory, loadMappings, loadRelease } from './load/index.js';
 import type { MappingSet } from './load/types.js';
 import { canonicalHierarchy, canonicalHistory } from './load/canonicalOrder.js';
+import { loadReleaseInThread } from './load/releaseThread.js';
 import { rescoreMappings, type RescoreOptions } from './rescore/rescoreMappings.js';
 import { rankByImpact, groupByChange } from './rank/rankByImpact.js';
 import { VERDICTS, type Verdict } from './rescore/types.js';
@@ -51,7 +52,8 @@ export interface DiffInputs {
 export async function loadDiffInputs(o: DiffOptions): Promise<DiffInputs> {
   const onProgress = (path: string) => (o.onProgress ? (read: number, size: number) => o.onProgress!(path, read, size) : undefined);
   const [oldR, newR, oh, nh, hist] = await Promise.all([
-    loadRelease(o.old, { label: o.oldLabel, columns: o.columns, order: 'canonical', onProgress: onProgress(o.old) }),
+    // The old release in a worker thread when it is large (load/releaseThread.ts): two cores read the two files.
+    loadReleaseInThread(o.old, { label: o.oldLabel, columns: o.columns, order: 'canonical', onProgress: onProgress(o.old) }),
     loadRelease(o.new, { label: o.newLabel, columns: o.columns, order: 'canonical', onProgress: onProgress(o.new) }),
     // Canonical order (load/canonicalOrder.ts): the report does not depend on the row order.
     o.oldHierarchy ? loadHierarchy(o.oldHierarchy, { onProgress: onProgress(o.oldHierarchy) }).then(canonicalHierarchy) : undefined,

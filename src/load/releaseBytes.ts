@@ -281,6 +281,9 @@ function bytesOf(r: Release): ReleaseBytes | undefined {
   return storage.get(r);
 }
 
+/** The byte storage of a release, for code that moves a release between threads (releaseThread.ts). */
+export const releaseBytesOf = bytesOf;
+
 function lazyProperty<T>(target: object, key: string, get: () => T, onSet: (value: T) => void): void {
   Object.defineProperty(target, key, {
     enumerable: true,
