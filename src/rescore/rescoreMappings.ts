@@ -186,7 +186,20 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     return f;
   };
   const lexCache = new Map<string, Float64Array>();
+  // A concept outside the changed frontier has the same active terms (text, type, language, in
+  // order) in both releases (align/types.ts), and both releases' features share one set of
+  // document frequencies, so its lexical features are the same in both: computed once, on the
+  // old concept. (Most mappings point at such concepts.)
+  const unchangedOld = (n: number): number => {
+    if (ctx.news.has(n)) return -1;
+    const c = conceptIndexOf(oldR, newR.conceptIds[n]);
+    return c >= 0 && !ctx.olds.has(c) && oldR.conceptStatus[c] === newR.conceptStatus[n] ? c : -1;
+  };
   const lexical = (r: Release, label: TextForms, c: number): Float64Array => {
+    if (r === newR && oldFeatures.df === newFeatures.df) {
+      const same = unchangedOld(c);
+      if (same >= 0) return lexical(oldR, label, same);
+    }
     const key = `${r === oldR ? 'o' : 'n'}${c}\u0001${label.text}`;
     let v = lexCache.get(key);
     if (!v) {
