@@ -6,7 +6,7 @@
 import { loadHierarchy, loadHistory, loadMappings, loadRelease } from './load/index.js';
 import type { MappingSet } from './load/types.js';
 import { canonicalHierarchy, canonicalHistory } from './load/canonicalOrder.js';
-import { loadReleaseInThread } from './load/releaseThread.js';
+import { loadHierarchyInThread, loadReleaseInThread } from './load/releaseThread.js';
 import { rescoreMappings, type RescoreOptions } from './rescore/rescoreMappings.js';
 import { rankByImpact, groupByChange } from './rank/rankByImpact.js';
 import { VERDICTS, type Verdict } from './rescore/types.js';
@@ -56,7 +56,7 @@ export async function loadDiffInputs(o: DiffOptions): Promise<DiffInputs> {
     loadReleaseInThread(o.old, { label: o.oldLabel, columns: o.columns, order: 'canonical', onProgress: onProgress(o.old) }),
     loadRelease(o.new, { label: o.newLabel, columns: o.columns, order: 'canonical', onProgress: onProgress(o.new) }),
     // Canonical order (load/canonicalOrder.ts): the report does not depend on the row order.
-    o.oldHierarchy ? loadHierarchy(o.oldHierarchy, { onProgress: onProgress(o.oldHierarchy) }).then(canonicalHierarchy) : undefined,
+    o.oldHierarchy ? loadHierarchyInThread(o.oldHierarchy, { onProgress: onProgress(o.oldHierarchy) }).then(canonicalHierarchy) : undefined,
     o.newHierarchy ? loadHierarchy(o.newHierarchy, { onProgress: onProgress(o.newHierarchy) }).then(canonicalHierarchy) : undefined,
     o.history ? loadHistory(o.history, { onProgress: onProgress(o.history) }).then(canonicalHistory) : undefined,
   ]);

@@ -16,13 +16,16 @@ import { existsSync, statSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import { loadRelease, type LoadReleaseOptions } from './loadRelease.js';
+import { loadHierarchy } from './loadHierarchy.js';
+import type { ColumnRenames } from './columns.js';
+import type { ProgressCallback } from './readTable.js';
 import { ReleaseBytes, attachReleaseBytes, releaseBytesOf } from './releaseBytes.js';
-import type { Release } from './types.js';
+import type { Hierarchy, Release } from './types.js';
 
 /** Files of fewer bytes are loaded on the calling thread (a worker costs about 50 ms to start). */
 export const THREAD_FROM_BYTES = 16 * 1024 * 1024;
 
-/** Releases received from a worker so far (tests check that the thread was used, not the fallback). */
+/** Releases and hierarchies received from a worker so far (tests check that the thread was used, not the fallback). */
 export const threadStats = { received: 0 };
 
 /** The release properties built on first read (not posted; they come back with the storage). */
@@ -81,36 +84,62 @@ function workerScript(): URL | undefined {
   return existsSync(fileURLToPath(url)) ? url : undefined;
 }
 
-/**
- * loadRelease, in a worker thread when the file is large enough to gain from it (`thread`: true
- * always when a worker can be started, false never; default: from THREAD_FROM_BYTES).
- */
-export async function loadReleaseInThread(path: string, options: LoadReleaseOptions = {}, thread?: boolean): Promise<Release> {
+/** Run the worker on one file; its answer, or undefined when it could not answer. */
+function inWorker<T>(script: URL, job: { kind: 'release' | 'hierarchy'; path: string; options: object }, onProgress: ProgressCallback | undefined): Promise<T | undefined> {
+  return new Promise<T | undefined>((resolve) => {
+    let worker: Worker;
+    try {
+      worker = new Worker(script, { workerData: { ...job, progress: onProgress !== undefined } });
+    } catch {
+      resolve(undefined);
+      return;
+    }
+    worker.on('message', (m: { progress?: [number, number]; result?: T; error?: string }) => {
+      if (m.progress) onProgress?.(m.progress[0], m.progress[1]);
+      else resolve(m.result);
+    });
+    worker.on('error', () => resolve(undefined));
+    worker.on('exit', () => resolve(undefined));
+  });
+}
+
+/** Is the file large enough (or `thread` set) for a worker to pay, and is there one? */
+function threadScript(path: string, thread: boolean | undefined): URL | undefined {
   const script = workerScript();
   let size = 0;
   try {
     size = statSync(path).size;
   } catch {
-    // loadRelease reports a missing or unreadable file.
+    // The loader reports a missing or unreadable file.
   }
-  if (script === undefined || !(thread ?? size >= THREAD_FROM_BYTES)) return loadRelease(path, options);
+  return script !== undefined && (thread ?? size >= THREAD_FROM_BYTES) ? script : undefined;
+}
+
+/**
+ * loadRelease, in a worker thread when the file is large enough to gain from it (`thread`: true
+ * always when a worker can be started, false never; default: from THREAD_FROM_BYTES).
+ */
+export async function loadReleaseInThread(path: string, options: LoadReleaseOptions = {}, thread?: boolean): Promise<Release> {
+  const script = threadScript(path, thread);
+  if (script === undefined) return loadRelease(path, options);
   const { onProgress, ...rest } = options;
-  const posted = await new Promise<PostedRelease | undefined>((resolve) => {
-    let worker: Worker;
-    try {
-      worker = new Worker(script, { workerData: { path, options: rest, progress: onProgress !== undefined } });
-    } catch {
-      resolve(undefined);
-      return;
-    }
-    worker.on('message', (m: { progress?: [number, number]; release?: PostedRelease; error?: string }) => {
-      if (m.progress) onProgress?.(m.progress[0], m.progress[1]);
-      else resolve(m.release);
-    });
-    worker.on('error', () => resolve(undefined));
-    worker.on('exit', () => resolve(undefined));
-  });
+  const posted = await inWorker<PostedRelease>(script, { kind: 'release', path, options: rest }, onProgress);
   if (posted === undefined) return loadRelease(path, options);
   threadStats.received++;
   return receiveRelease(posted);
+}
+
+/**
+ * loadHierarchy in a worker thread, likewise. The hierarchy comes back by structured clone (its
+ * Map of parent lists is strings); a 1.25 M-row hierarchy took 3 s to read and its copy here
+ * about 1 s (docs/BENCHMARKS.md).
+ */
+export async function loadHierarchyInThread(path: string, options: { columns?: ColumnRenames; onProgress?: ProgressCallback } = {}, thread?: boolean): Promise<Hierarchy> {
+  const script = threadScript(path, thread);
+  if (script === undefined) return loadHierarchy(path, options);
+  const { onProgress, ...rest } = options;
+  const h = await inWorker<Hierarchy>(script, { kind: 'hierarchy', path, options: rest }, onProgress);
+  if (h === undefined) return loadHierarchy(path, options);
+  threadStats.received++;
+  return h;
 }

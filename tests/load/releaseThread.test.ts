@@ -10,8 +10,8 @@ import { writeDataset } from '../../src/gen/writeDataset.js';
 import { tempDir, tsv, writeFile } from '../helpers/files.js';
 
 const dist = '../../dist/';
-const { loadRelease } = (await import(`${dist}load/index.js`)) as typeof import('../../src/load/index.js');
-const { loadReleaseInThread, threadStats } = (await import(`${dist}load/releaseThread.js`)) as typeof import('../../src/load/releaseThread.js');
+const { loadRelease, loadHierarchy } = (await import(`${dist}load/index.js`)) as typeof import('../../src/load/index.js');
+const { loadReleaseInThread, loadHierarchyInThread, threadStats } = (await import(`${dist}load/releaseThread.js`)) as typeof import('../../src/load/releaseThread.js');
 const bytesApi = (await import(`${dist}load/releaseBytes.js`)) as typeof import('../../src/load/releaseBytes.js');
 const { diffReleases } = (await import(`${dist}pipeline.js`)) as typeof import('../../src/pipeline.js');
 
@@ -74,4 +74,20 @@ describe('loadReleaseInThread', () => {
     expect((errThere as Error).message).toBe((err as Error).message);
     expect((errThere as Error).constructor).toBe((err as Error).constructor);
   }, 60_000);
+
+  it('a hierarchy loaded in a worker is the one loaded here, rejected rows and their messages too', async () => {
+    const dir = tempDir();
+    const path = writeFile(dir, 'h.tsv', tsv([['concept_id', 'parent_id'], ['C2', 'C1'], ['C3', 'C2'], ['C3', 'C1'], ['C3', 'C2'], ['C4', ''], ['C5', 'C5'], ['C6', 'C4']]));
+    const here = await loadHierarchy(path);
+    const before = threadStats.received;
+    const there = await loadHierarchyInThread(path, {}, true);
+    expect(threadStats.received).toBe(before + 1);
+    expect([...there.parents]).toEqual([...here.parents]);
+    expect([...here.parents]).toEqual([['C2', ['C1']], ['C3', ['C2', 'C1']], ['C6', ['C4']]]);
+    expect(there.edgeCount).toBe(here.edgeCount);
+    expect(there.accounting).toEqual(here.accounting);
+    expect(there.diagnostics).toEqual(here.diagnostics);
+    // The duplicate names the line of the first C3 → C2 edge (line 3; the header is line 1).
+    expect(here.diagnostics.find((d) => d.code === 'duplicate_row')?.message).toMatch(/^duplicate of line 3:/);
+  });
 });
