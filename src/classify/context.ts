@@ -21,8 +21,8 @@ import { alignTerms, activeTerms } from '../align/alignTerms.js';
 import type { Alignment } from '../align/types.js';
 import { foldTerm, lexicalKey } from '../text/normalize.js';
 import { levenshteinSimilarity, tokenJaccard } from '../text/similarity.js';
-import type { ConceptIndex } from '../rescore/conceptIndex.js';
-import { startConceptIndex } from '../rescore/indexThread.js';
+import type { ConceptIndex, IndexHit } from '../rescore/conceptIndex.js';
+import { startConceptIndex, type SearchQuery } from '../rescore/indexThread.js';
 import { DEFAULT_THRESHOLDS, type Thresholds } from './thresholds.js';
 import type { FlowCell, HistoryEvidence } from './types.js';
 
@@ -87,6 +87,8 @@ export interface DiffContext {
   groups: StructuralGroup[];
   /** Lazily built index of the new release's active concepts. */
   newIndex(): ConceptIndex;
+  /** Searches of that index started now, answered later (on the index's worker thread when it has one). */
+  searchAhead(queries: SearchQuery[]): () => IndexHit[][];
 }
 
 export const isActive = (r: Release, c: number) => r.conceptStatus[c] === ACTIVE;
@@ -181,7 +183,7 @@ export function buildContext(input: DiffInput): DiffContext {
   const oldR = input.old;
   const newR = input.new;
   // Started first, so that on a second core it is built while the terms are aligned (rescore/indexThread.ts).
-  const newIndex = startConceptIndex(newR);
+  const index = startConceptIndex(newR);
   const align = alignTerms(oldR, newR);
   const olds = new Map<number, OldNode>();
   const news = new Map<number, NewNode>();
@@ -290,7 +292,7 @@ export function buildContext(input: DiffInput): DiffContext {
     }
   }
 
-  return { input, old: oldR, new: newR, align, thresholds, olds, news, groups, newIndex };
+  return { input, old: oldR, new: newR, align, thresholds, olds, news, groups, newIndex: index.get, searchAhead: index.searchAhead };
 }
 
 /** Flow cells of a set of old concepts into a set of new concepts (active terms). */

@@ -11,6 +11,8 @@ import { conceptIndexOf, termTextAt } from '../load/releaseBytes.js';
 
 export interface Detector<K extends ChangeKind = ChangeKind> {
   kind: K;
+  /** Called for every detector before any detects: start work that can run beside the others (e.g. ctx.searchAhead). */
+  prepare?(ctx: DiffContext): void;
   detect(ctx: DiffContext): ChangeOf<K>[];
 }
 

@@ -254,6 +254,11 @@ export class ConceptIndex {
     this.scratch = new Float64Array(release.termCount);
   }
 
+  /** The built index as parts (shared, not copied), e.g. to move it to another thread. */
+  parts(): IndexParts {
+    return { words: this.words, start: this.start, terms: this.terms, idfs: this.idfs, termNorm: this.termNorm, termStart: this.termStart, termWords: this.termWords };
+  }
+
   /** Vocabulary words within `fuzzyMin` trigram-Dice of `word`, best first (not the word itself). */
   private fuzzy(word: string): { w: number; weight: number }[] {
     if (word.length < 4) return [];

@@ -1,37 +1,62 @@
 /**
  * The nearest-concept index of a large release, built in a worker thread while the main thread
- * goes on (aligning terms, classifying changes); the first caller that needs it waits for it.
+ * goes on (aligning terms, classifying changes), and searched there too.
  *
  * Building the index of a 4 M-term release takes about 6 s on one core, and the diff needs it
  * only late (for the successors of retired concepts), so on a machine with a second core that
  * time overlaps the rest of the diff (docs/BENCHMARKS.md). The worker builds from the release's
  * indexSource (typed arrays and the loader's byte blocks; blocks of large files live in a
  * SharedArrayBuffer and are not copied) with the same function as the main thread
- * (buildIndexParts), and hands the typed arrays back by transfer, so the index is the same either
- * way; tests/rescore/indexThread.test.ts compares the two.
+ * (buildIndexParts). It then answers, in order: batches of searches (`searchAhead`; the
+ * retirement detector starts its batch before the other detectors run), and last the index
+ * itself, its typed arrays transferred, when something here needs it (`get`; re-scoring does).
+ * Same code, same data: the hits and the index are those of the main thread;
+ * tests/rescore/indexThread.test.ts compares them.
  *
- * The wait is synchronous (Atomics.wait, then receiveMessageOnPort), since the detectors are. A
- * worker that stops without answering (out of memory, killed) is noticed by its heartbeat: when
- * that has not moved for STALL_SECONDS the index is built here instead. Small releases, and
- * releases without byte storage, are built here on first need as before.
+ * Waits are synchronous (Atomics.wait on a count of the worker's answers, then
+ * receiveMessageOnPort), since the detectors are. A worker that fails answers with an error; one
+ * that stops without answering (out of memory, killed) is noticed by its heartbeat, which has not
+ * moved for STALL_SECONDS. Either way it is stopped and the work is done here. Small releases,
+ * and releases without byte storage, are indexed here on first need.
  */
 import { existsSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { MessageChannel, Worker, receiveMessageOnPort } from 'node:worker_threads';
 import type { Release } from '../load/types.js';
-import { ConceptIndex, indexSource, type ConceptIndexOptions, type IndexParts } from './conceptIndex.js';
+import { ConceptIndex, indexSource, type ConceptIndexOptions, type IndexHit, type IndexParts } from './conceptIndex.js';
+
+/** State shared with the worker: [0] messages the worker has posted, [1] heartbeat. */
+export const POSTED = 0;
+export const HEARTBEAT = 1;
+
+/** One nearest-concept search: the texts of a concept, as ConceptIndex.search takes them. */
+export interface SearchQuery {
+  texts: string[];
+  limit: number;
+  skipConcept: number;
+}
+
+/** Messages to the worker, and its answers (in the order asked; the first says it has built). */
+export type IndexRequest = { searches: SearchQuery[] } | { parts: true };
+export type IndexAnswer = { built: true } | { hits: IndexHit[][] } | { parts: IndexParts } | { error: string };
+
+export interface IndexHandle {
+  /** The index on this thread (moved here from the worker, or built here, on first need). */
+  get(): ConceptIndex;
+  /**
+   * Start the searches; the function returned gives their hits, in order. With a worker, they
+   * run there while this thread goes on; otherwise on this thread, when the hits are asked for.
+   */
+  searchAhead(queries: SearchQuery[]): () => IndexHit[][];
+}
 
 /** Releases of fewer terms are indexed on the main thread (starting a worker costs about 50 ms). */
 export const THREAD_FROM_TERMS = 100_000;
 /** Seconds without a heartbeat from the worker after which the main thread builds the index itself. */
 const STALL_SECONDS = 30;
 
-/** State shared with the worker: [0] 0 running, 1 answered; [1] heartbeat. */
-export const RUNNING = 0;
-export const ANSWERED = 1;
-
-/** Indexes received from a worker so far (tests check that the thread was used, not the fallback). */
-export const threadStats = { received: 0 };
+/** Indexes built by a worker so far (tests check that the thread was used, not the fallback). */
+export const threadStats = { received: 0, searchedThere: 0 };
 
 export interface IndexThreadOptions extends ConceptIndexOptions {
   /** Build in a worker thread: true always (when possible), false never; default from THREAD_FROM_TERMS. */
@@ -44,19 +69,28 @@ function workerScript(): URL | undefined {
   return existsSync(fileURLToPath(url)) ? url : undefined;
 }
 
+const runHere = (index: () => ConceptIndex, queries: SearchQuery[]) => queries.map((q) => index().search(q.texts, q.limit, q.skipConcept));
+
 /**
- * Start building the index of `release`; returns the function that gives it (waiting for the
- * worker the first time, or building it then when no worker was started).
+ * Start building the index of `release`: in a worker thread when the release is large (or
+ * `thread` says so) and a compiled worker is there, else on this thread on first need.
  */
-export function startConceptIndex(release: Release, options: IndexThreadOptions = {}): () => ConceptIndex {
+export function startConceptIndex(release: Release, options: IndexThreadOptions = {}): IndexHandle {
   const { thread, ...indexOptions } = options;
   let index: ConceptIndex | undefined;
   const here = () => (index ??= new ConceptIndex(release, indexOptions));
+  const local: IndexHandle = {
+    get: here,
+    searchAhead: (queries) => {
+      let hits: IndexHit[][] | undefined;
+      return () => (hits ??= runHere(here, queries));
+    },
+  };
   const wanted = thread ?? release.termCount >= THREAD_FROM_TERMS;
   const script = wanted ? workerScript() : undefined;
-  if (script === undefined) return here;
+  if (script === undefined) return local;
   const src = indexSource(release);
-  if (src.bytes === undefined) return here;
+  if (src.bytes === undefined) return local;
 
   const state = new Int32Array(new SharedArrayBuffer(8));
   const { port1, port2 } = new MessageChannel();
@@ -64,36 +98,89 @@ export function startConceptIndex(release: Release, options: IndexThreadOptions 
   let worker: Worker;
   try {
     worker = new Worker(script, {
-      workerData: { termCount: src.termCount, active: src.active, blocks: bytes.blocks, termBlock: bytes.termBlock, textStart: bytes.textStart, textEnd: bytes.textEnd, state, port: port2 },
+      workerData: {
+        termCount: src.termCount, active: src.active, termConcept: release.termConcept, options: indexOptions,
+        blocks: bytes.blocks, termBlock: bytes.termBlock, textStart: bytes.textStart, textEnd: bytes.textEnd, state, port: port2,
+      },
       transferList: [port2, src.active.buffer as ArrayBuffer],
     });
   } catch {
     port1.close();
-    return here;
+    return local;
   }
   worker.unref();
-  // An error is answered on the port; this only keeps an unanswered failure from being an unhandled event.
+  // Failures are answered on the port, or noticed by the heartbeat; this only keeps an error event from going unhandled.
   worker.on('error', () => {});
-  return () => {
-    if (index !== undefined) return index;
-    let beat = Atomics.load(state, 1);
+
+  let read = 0;
+  let alive = true;
+  /** The worker's next answer, waited for; undefined once it failed or stalled (then it is stopped). */
+  const next = (): IndexAnswer | undefined => {
+    if (!alive) return undefined;
+    let beat = Atomics.load(state, HEARTBEAT);
     let quiet = 0;
-    while (Atomics.load(state, 0) === RUNNING && quiet < STALL_SECONDS) {
-      if (Atomics.wait(state, 0, RUNNING, 1000) !== 'timed-out') continue;
-      const now = Atomics.load(state, 1);
+    while (Atomics.load(state, POSTED) === read && quiet < STALL_SECONDS) {
+      if (Atomics.wait(state, POSTED, read, 1000) !== 'timed-out') continue;
+      const now = Atomics.load(state, HEARTBEAT);
       quiet = now === beat ? quiet + 1 : 0;
       beat = now;
     }
-    const answer = Atomics.load(state, 0) === ANSWERED ? (receiveMessageOnPort(port1)?.message as { parts?: IndexParts } | undefined) : undefined;
-    port1.close();
-    if (answer?.parts) {
-      index = new ConceptIndex(release, indexOptions, answer.parts);
-      threadStats.received++;
+    const answer = Atomics.load(state, POSTED) > read ? (receiveMessageOnPort(port1)?.message as IndexAnswer | undefined) : undefined;
+    if (answer === undefined || 'error' in answer) {
+      stop();
+      return undefined;
     }
-    else {
-      void worker.terminate();
-      index = new ConceptIndex(release, indexOptions);
-    }
-    return index;
+    read++;
+    return answer;
   };
+  const stop = () => {
+    if (!alive) return;
+    alive = false;
+    port1.close();
+    void worker.terminate();
+  };
+  let built: boolean | undefined;
+  const waitBuilt = (): boolean => (built ??= next() !== undefined);
+  /** Searches asked of the worker whose hits are not yet read, in order. */
+  const pending: { hits?: IndexHit[][]; queries: SearchQuery[] }[] = [];
+  /** Read the hits of every pending search (from the worker, or here once it has failed). */
+  const drain = () => {
+    const ok = waitBuilt();
+    for (const p of pending) {
+      if (p.hits !== undefined) continue;
+      const a = ok ? next() : undefined;
+      if (a && 'hits' in a) {
+        p.hits = a.hits;
+        threadStats.searchedThere += p.queries.length;
+      } else p.hits = runHere(here, p.queries);
+    }
+    pending.length = 0;
+  };
+  const handle: IndexHandle = {
+    get() {
+      if (index !== undefined) return index;
+      drain();
+      if (waitBuilt() && alive) {
+        port1.postMessage({ parts: true } satisfies IndexRequest);
+        const a = next();
+        if (a && 'parts' in a) {
+          index = new ConceptIndex(release, indexOptions, a.parts);
+          threadStats.received++;
+        }
+      }
+      stop();
+      return here();
+    },
+    searchAhead(queries) {
+      if (index !== undefined || !alive) return local.searchAhead(queries);
+      const p: { hits?: IndexHit[][]; queries: SearchQuery[] } = { queries };
+      pending.push(p);
+      port1.postMessage({ searches: queries } satisfies IndexRequest);
+      return () => {
+        if (p.hits === undefined) drain();
+        return p.hits!;
+      };
+    },
+  };
+  return handle;
 }

@@ -20,22 +20,35 @@ describe('startConceptIndex', () => {
     const oldR = await loadRelease(paths.old, { order: 'canonical' });
     const newR = await loadRelease(paths.new, { order: 'canonical' });
     const before = threadStats.received;
-    const fromThread = startConceptIndex(newR, { thread: true })();
-    expect(threadStats.received).toBe(before + 1);
+    const handle = startConceptIndex(newR, { thread: true });
     const here = new ConceptIndex(newR);
-    expect(fromThread).not.toBe(here);
     // Queries: every term of every 7th old concept, as the retirement detector asks them, and
-    // misspelled ones (the fuzzy expansion over the vocabulary).
-    let compared = 0;
+    // misspelled ones (the fuzzy expansion over the vocabulary); the concept itself left out.
+    const queries: { texts: string[]; limit: number; skipConcept: number }[] = [];
     for (let c = 0; c < oldR.conceptCount; c += 7) {
       const texts: string[] = [];
       for (let k = oldR.conceptTermStart[c]; k < oldR.conceptTermStart[c + 1]; k++) texts.push(termTextAt(oldR, oldR.conceptTerms[k]));
-      const typo = texts.map((s) => s.replace(/[aeiou]/, 'x'));
-      expect(fromThread.search(texts, 10)).toEqual(here.search(texts, 10));
-      expect(fromThread.search(typo, 10)).toEqual(here.search(typo, 10));
-      compared++;
+      const skipConcept = newR.conceptIds.indexOf(oldR.conceptIds[c]);
+      queries.push({ texts, limit: 10, skipConcept }, { texts: texts.map((s) => s.replace(/[aeiou]/, 'x')), limit: 10, skipConcept: -1 });
     }
-    expect(compared).toBeGreaterThan(100);
+    expect(queries.length).toBeGreaterThan(200);
+    const expected = queries.map((q) => here.search(q.texts, q.limit, q.skipConcept));
+    // Searched on the worker, in two batches (answered in order) …
+    const searched = threadStats.searchedThere;
+    const first = handle.searchAhead(queries.slice(0, 100));
+    const second = handle.searchAhead(queries.slice(100));
+    expect(second()).toEqual(expected.slice(100));
+    expect(first()).toEqual(expected.slice(0, 100));
+    expect(threadStats.searchedThere).toBe(searched + queries.length);
+    // … then the index itself moved here.
+    const fromThread = handle.get();
+    expect(threadStats.received).toBe(before + 1);
+    expect(fromThread).not.toBe(here);
+    expect(handle.get()).toBe(fromThread);
+    expect(queries.map((q) => fromThread.search(q.texts, q.limit, q.skipConcept))).toEqual(expected);
+    // Searches after that run here.
+    expect(handle.searchAhead(queries.slice(0, 5))()).toEqual(expected.slice(0, 5));
+    expect(threadStats.searchedThere).toBe(searched + queries.length);
   }, 60_000);
 
   it('a small release is built on first need, on this thread', async () => {
@@ -43,9 +56,10 @@ describe('startConceptIndex', () => {
     const { paths } = await writeDataset(dir, generateDataset({ concepts: 200, seed: 3 }));
     const r = await loadRelease(paths.new, { order: 'canonical' });
     const before = threadStats.received;
-    const get = startConceptIndex(r);
-    expect(get()).toBe(get());
+    const handle = startConceptIndex(r);
+    expect(handle.get()).toBe(handle.get());
     expect(threadStats.received).toBe(before);
-    expect(get().search([termTextAt(r, 0)], 1)[0].score).toBe(1);
+    expect(handle.get().search([termTextAt(r, 0)], 1)[0].score).toBe(1);
+    expect(handle.searchAhead([{ texts: [termTextAt(r, 0)], limit: 1, skipConcept: -1 }])()[0][0].score).toBe(1);
   });
 });

@@ -12,6 +12,8 @@ import { flowCells, historyEvidence, isActive, resolveHistory, round, type DiffC
 import type { Successor } from '../types.js';
 import { groupsOf } from './structural.js';
 import { conceptIndexOf, termTextAt } from '../../load/releaseBytes.js';
+import type { IndexHit } from '../../rescore/conceptIndex.js';
+import type { SearchQuery } from '../../rescore/indexThread.js';
 
 export function proposeSuccessors(ctx: DiffContext, o: OldNode): Successor[] {
   const named: Successor[] = [];
@@ -30,10 +32,9 @@ export function proposeSuccessors(ctx: DiffContext, o: OldNode): Successor[] {
     if (!isActive(ctx.new, n)) continue;
     out.push({ concept_id: ctx.new.conceptIds[n], label: conceptLabel(ctx.new, n), score: round(terms.length / Math.max(1, o.terms.length)), reason: 'term_flow' });
   }
-  const texts = o.terms.map((t) => termTextAt(ctx.old, t));
-  if (texts.length) {
-    const self = conceptIndexOf(ctx.new, o.id);
-    for (const hit of ctx.newIndex().search(texts, ctx.thresholds.maxSuggestions * 2, self)) {
+  const hits = neighbourHits(ctx, o);
+  if (hits.length) {
+    for (const hit of hits) {
       if (hit.score < ctx.thresholds.neighbourMin) break;
       out.push({ concept_id: ctx.new.conceptIds[hit.concept], label: conceptLabel(ctx.new, hit.concept), score: round(hit.score), reason: 'lexical_neighbour' });
     }
@@ -42,8 +43,38 @@ export function proposeSuccessors(ctx: DiffContext, o: OldNode): Successor[] {
   return [...rankSuccessors(named, named.length), ...rankSuccessors(guesses, Math.max(0, ctx.thresholds.maxSuggestions - named.length))];
 }
 
+/** The nearest-concept search for the successors of retired concept o. */
+function neighbourQuery(ctx: DiffContext, o: OldNode): SearchQuery | undefined {
+  if (o.terms.length === 0) return undefined;
+  return { texts: o.terms.map((t) => termTextAt(ctx.old, t)), limit: ctx.thresholds.maxSuggestions * 2, skipConcept: conceptIndexOf(ctx.new, o.id) };
+}
+
+/** Searches started by `prepare`: old concept → its position in the batch, and the batch's hits. */
+const ahead = new WeakMap<DiffContext, { at: Map<number, number>; hits: () => IndexHit[][] }>();
+
+function neighbourHits(ctx: DiffContext, o: OldNode): IndexHit[] {
+  const started = ahead.get(ctx);
+  const at = started?.at.get(o.c);
+  if (started && at !== undefined) return started.hits()[at];
+  const q = neighbourQuery(ctx, o);
+  return q ? ctx.newIndex().search(q.texts, q.limit, q.skipConcept) : [];
+}
+
 export const retirement: Detector<'retirement'> = {
   kind: 'retirement',
+  prepare(ctx) {
+    // The searches of every retired concept at once, so that they run beside the other detectors.
+    const at = new Map<number, number>();
+    const queries: SearchQuery[] = [];
+    for (const g of groupsOf(ctx, 'retirement')) {
+      const o = ctx.olds.get(g.olds[0])!;
+      const q = neighbourQuery(ctx, o);
+      if (q === undefined || at.has(o.c)) continue;
+      at.set(o.c, queries.length);
+      queries.push(q);
+    }
+    if (queries.length) ahead.set(ctx, { at, hits: ctx.searchAhead(queries) });
+  },
   detect(ctx) {
     return groupsOf(ctx, 'retirement').map((g) => {
       const o = ctx.olds.get(g.olds[0])!;
