@@ -1,6 +1,6 @@
 /**
  * Load a release in a worker thread, so that the two releases of a diff are read on two cores
- * at once (the loader is single-threaded: about 3.5 s per 4 M-row file, docs/BENCHMARKS.md).
+ * at once (the loader is single-threaded: about 4.4 s per 4 M-row file alone, docs/BENCHMARKS.md).
  *
  * The worker runs loadRelease itself, with the same options, and posts the release back as its
  * parts: the typed columns and the byte blocks are transferred or shared (blocks of large files

@@ -186,8 +186,8 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     return f;
   };
   const lexCache = new Map<string, Float64Array>();
-  // A concept outside the changed frontier has the same active terms (text, type, language, in
-  // order) in both releases (align/types.ts), and both releases' features share one set of
+  // A concept outside the changed frontier has the same active terms (text, type, language; as a
+  // multiset, which the features, maxima over the terms, do not see the order of) in both releases (align/types.ts), and both releases' features share one set of
   // document frequencies, so its lexical features are the same in both: computed once, on the
   // old concept. (Most mappings point at such concepts.)
   const unchangedOld = (n: number): number => {

@@ -32,12 +32,9 @@ export function proposeSuccessors(ctx: DiffContext, o: OldNode): Successor[] {
     if (!isActive(ctx.new, n)) continue;
     out.push({ concept_id: ctx.new.conceptIds[n], label: conceptLabel(ctx.new, n), score: round(terms.length / Math.max(1, o.terms.length)), reason: 'term_flow' });
   }
-  const hits = neighbourHits(ctx, o);
-  if (hits.length) {
-    for (const hit of hits) {
-      if (hit.score < ctx.thresholds.neighbourMin) break;
-      out.push({ concept_id: ctx.new.conceptIds[hit.concept], label: conceptLabel(ctx.new, hit.concept), score: round(hit.score), reason: 'lexical_neighbour' });
-    }
+  for (const hit of neighbourHits(ctx, o)) {
+    if (hit.score < ctx.thresholds.neighbourMin) break;
+    out.push({ concept_id: ctx.new.conceptIds[hit.concept], label: conceptLabel(ctx.new, hit.concept), score: round(hit.score), reason: 'lexical_neighbour' });
   }
   const guesses = out.filter((s) => !isNamed.has(s.concept_id));
   return [...rankSuccessors(named, named.length), ...rankSuccessors(guesses, Math.max(0, ctx.thresholds.maxSuggestions - named.length))];
