@@ -52,13 +52,51 @@ export class DocumentFrequencies {
   idf(token: string): number {
     return Math.log((this.documents + 1) / (this.frequency(token) + 1)) + 1;
   }
+
+  /** The counts as plain data, for a worker thread (see fromParts). */
+  toParts(): { documents: number; tokens: string[]; counts: Int32Array } {
+    return { documents: this.documents, tokens: [...this.counts.keys()], counts: Int32Array.from(this.counts.values()) };
+  }
+
+  /** Document frequencies equal to those `toParts` was taken from. */
+  static fromParts(p: { documents: number; tokens: string[]; counts: Int32Array }): DocumentFrequencies {
+    const df = new DocumentFrequencies();
+    df.documents = p.documents;
+    p.tokens.forEach((t, i) => df.counts.set(t, p.counts[i]));
+    return df;
+  }
 }
 
-function termFrequencies(tokens: readonly string[]): Map<string, number> {
-  const tf = new Map<string, number>();
-  for (const t of tokens) tf.set(t, (tf.get(t) ?? 0) + 1);
-  return tf;
+/**
+ * Distinct tokens of a list in first-seen order with their counts, in two reused arrays (the
+ * lists are a term's few words; a Map per call cost more than the scan).
+ */
+class Frequencies {
+  readonly tokens: string[] = [];
+  counts = new Int32Array(16);
+  size = 0;
+
+  of(list: readonly string[]): this {
+    this.size = 0;
+    if (this.counts.length < list.length) this.counts = new Int32Array(list.length * 2);
+    for (const t of list) {
+      let k = 0;
+      while (k < this.size && this.tokens[k] !== t) k++;
+      if (k === this.size) {
+        this.tokens[this.size] = t;
+        this.counts[this.size++] = 1;
+      } else this.counts[k]++;
+    }
+    return this;
+  }
+
+  get(t: string): number | undefined {
+    for (let k = 0; k < this.size; k++) if (this.tokens[k] === t) return this.counts[k];
+    return undefined;
+  }
 }
+const freqA = new Frequencies();
+const freqB = new Frequencies();
 
 /**
  * Cosine of the TF-IDF vectors of two token lists, in [0, 1]. Two empty lists
@@ -69,20 +107,22 @@ export function tfidfCosine(tokensA: readonly string[], tokensB: readonly string
   if (tokensA.length === 0 || tokensB.length === 0) {
     return tokensA.length === tokensB.length ? 1 : 0;
   }
-  const tfA = termFrequencies(tokensA);
-  const tfB = termFrequencies(tokensB);
+  // Sums in the same order as over Maps of the lists (first occurrence), so the same floats.
+  const tfA = freqA.of(tokensA);
+  const tfB = freqB.of(tokensB);
   let dot = 0;
   let normA = 0;
   let normB = 0;
-  for (const [token, count] of tfA) {
+  for (let k = 0; k < tfA.size; k++) {
+    const token = tfA.tokens[k];
     const idf = df.idf(token);
-    const wa = count * idf;
+    const wa = tfA.counts[k] * idf;
     normA += wa * wa;
     const countB = tfB.get(token);
     if (countB !== undefined) dot += wa * countB * idf;
   }
-  for (const [token, count] of tfB) {
-    const wb = count * df.idf(token);
+  for (let k = 0; k < tfB.size; k++) {
+    const wb = tfB.counts[k] * df.idf(tfB.tokens[k]);
     normB += wb * wb;
   }
   const cosine = dot / Math.sqrt(normA * normB);
