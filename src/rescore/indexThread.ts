@@ -21,13 +21,10 @@
  */
 import { existsSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
-import { MessageChannel, Worker, receiveMessageOnPort } from 'node:worker_threads';
+import { MessageChannel, Worker } from 'node:worker_threads';
 import type { Release } from '../load/types.js';
 import { ConceptIndex, indexSource, type ConceptIndexOptions, type IndexHit, type IndexParts } from './conceptIndex.js';
-
-/** State shared with the worker: [0] messages the worker has posted, [1] heartbeat. */
-export const POSTED = 0;
-export const HEARTBEAT = 1;
+import { WorkerAnswers, answerState } from './workerAnswers.js';
 
 /** One nearest-concept search: the texts of a concept, as ConceptIndex.search takes them. */
 export interface SearchQuery {
@@ -92,7 +89,7 @@ export function startConceptIndex(release: Release, options: IndexThreadOptions 
   const src = indexSource(release);
   if (src.bytes === undefined) return local;
 
-  const state = new Int32Array(new SharedArrayBuffer(8));
+  const state = answerState();
   const { port1, port2 } = new MessageChannel();
   const bytes = src.bytes;
   let worker: Worker;
@@ -112,33 +109,9 @@ export function startConceptIndex(release: Release, options: IndexThreadOptions 
   // Failures are answered on the port, or noticed by the heartbeat; this only keeps an error event from going unhandled.
   worker.on('error', () => {});
 
-  let read = 0;
-  let alive = true;
-  /** The worker's next answer, waited for; undefined once it failed or stalled (then it is stopped). */
-  const next = (): IndexAnswer | undefined => {
-    if (!alive) return undefined;
-    let beat = Atomics.load(state, HEARTBEAT);
-    let quiet = 0;
-    while (Atomics.load(state, POSTED) === read && quiet < STALL_SECONDS) {
-      if (Atomics.wait(state, POSTED, read, 1000) !== 'timed-out') continue;
-      const now = Atomics.load(state, HEARTBEAT);
-      quiet = now === beat ? quiet + 1 : 0;
-      beat = now;
-    }
-    const answer = Atomics.load(state, POSTED) > read ? (receiveMessageOnPort(port1)?.message as IndexAnswer | undefined) : undefined;
-    if (answer === undefined || 'error' in answer) {
-      stop();
-      return undefined;
-    }
-    read++;
-    return answer;
-  };
-  const stop = () => {
-    if (!alive) return;
-    alive = false;
-    port1.close();
-    void worker.terminate();
-  };
+  const answers = new WorkerAnswers<IndexAnswer>(state, port1, STALL_SECONDS, () => void worker.terminate());
+  const next = () => answers.next();
+  const stop = () => answers.stop();
   let built: boolean | undefined;
   const waitBuilt = (): boolean => (built ??= next() !== undefined);
   /** Searches asked of the worker whose hits are not yet read, in order. */
@@ -160,7 +133,7 @@ export function startConceptIndex(release: Release, options: IndexThreadOptions 
     get() {
       if (index !== undefined) return index;
       drain();
-      if (waitBuilt() && alive) {
+      if (waitBuilt() && answers.alive) {
         port1.postMessage({ parts: true } satisfies IndexRequest);
         const a = next();
         if (a && 'parts' in a) {
@@ -172,7 +145,7 @@ export function startConceptIndex(release: Release, options: IndexThreadOptions 
       return here();
     },
     searchAhead(queries) {
-      if (index !== undefined || !alive) return local.searchAhead(queries);
+      if (index !== undefined || !answers.alive) return local.searchAhead(queries);
       const p: { hits?: IndexHit[][]; queries: SearchQuery[] } = { queries };
       pending.push(p);
       port1.postMessage({ searches: queries } satisfies IndexRequest);

@@ -7,7 +7,8 @@
 import { workerData } from 'node:worker_threads';
 import type { MessagePort } from 'node:worker_threads';
 import { ConceptIndex, buildIndexParts, type ConceptIndexOptions } from './conceptIndex.js';
-import { HEARTBEAT, POSTED, type IndexAnswer, type IndexRequest } from './indexThread.js';
+import type { IndexAnswer, IndexRequest } from './indexThread.js';
+import { answerer } from './workerAnswers.js';
 import type { Release } from '../load/types.js';
 
 const d = workerData as {
@@ -15,12 +16,8 @@ const d = workerData as {
   blocks: Uint8Array[]; termBlock: Int32Array; textStart: Int32Array; textEnd: Int32Array;
   state: Int32Array; port: MessagePort;
 };
-const beat = () => Atomics.add(d.state, HEARTBEAT, 1);
-const answer = (a: IndexAnswer, transfer: ArrayBuffer[] = []) => {
-  d.port.postMessage(a, transfer);
-  Atomics.add(d.state, POSTED, 1);
-  Atomics.notify(d.state, POSTED);
-};
+const { beat, answer: post } = answerer(d.state, d.port);
+const answer = (a: IndexAnswer, transfer: ArrayBuffer[] = []) => post(a, transfer);
 
 const blocks = d.blocks.map((b) => Buffer.from(b.buffer, b.byteOffset, b.byteLength));
 let index: ConceptIndex | undefined;
