@@ -120,12 +120,17 @@ export function releaseDocumentFrequencies(r: Release, maxTerms = 100_000): Docu
 }
 
 /** One term of a concept with its forms; the lexical key and stems are filled on first use. */
-interface TermEntry {
+export interface TermEntry {
   term: number;
   nfc: string;
   folded: string;
   lexical?: string;
   stems?: string[];
+}
+
+/** The entry of term `term` with text `text`. */
+export function termEntry(term: number, text: string): TermEntry {
+  return { term, nfc: text.normalize('NFC'), folded: foldTerm(text) };
 }
 
 /** Result of the lexical comparison of a label with a concept. */
@@ -153,20 +158,10 @@ export class ReleaseFeatures {
   private terms(c: number): TermEntry[] {
     let entry = this.cache.get(c);
     if (!entry) {
-      entry = activeTermsOf(this.release, c).map((t) => {
-        const text = termTextAt(this.release, t);
-        return { term: t, nfc: text.normalize('NFC'), folded: foldTerm(text) };
-      });
+      entry = activeTermsOf(this.release, c).map((t) => termEntry(t, termTextAt(this.release, t)));
       this.cache.set(c, entry);
     }
     return entry;
-  }
-
-  private static fillLexical(e: TermEntry): void {
-    if (e.lexical === undefined) {
-      e.lexical = lexicalKeyOfFolded(e.folded);
-      e.stems = e.lexical === '' ? [] : e.lexical.split(' ');
-    }
   }
 
   /**
@@ -179,43 +174,58 @@ export class ReleaseFeatures {
    * against the other terms; most labels of a mapping set are copies of a term.
    */
   lexical(label: TextForms, c: number, out: Float64Array, offset = 0, skipTerm = -1): LexicalMatch {
-    for (let j = 0; j < LEXICAL_COUNT; j++) out[offset + j] = 0;
-    const terms = this.terms(c);
-    let foldedHit = -1;
-    let exact = 0;
-    for (const e of terms) {
-      if (e.term === skipTerm) continue;
-      if (e.nfc === label.nfc) exact = 1;
-      if (foldedHit < 0 && e.folded === label.folded) foldedHit = e.term;
-    }
-    if (foldedHit >= 0) {
-      out[offset] = exact;
-      for (let j = 1; j < LEXICAL_COUNT; j++) out[offset + j] = 1;
-      return { bestTerm: foldedHit };
-    }
-    let bestTerm = -1;
-    let bestKey = -1;
-    for (const e of terms) {
-      if (e.term === skipTerm) continue;
-      ReleaseFeatures.fillLexical(e);
-      const lexical = e.lexical !== '' && e.lexical === label.lexical ? 1 : 0;
-      const tfidf = tfidfCosine(label.stems, e.stems!, this.df);
-      const trigram = trigramDice(label.folded, e.folded);
-      const jw = jaroWinkler(label.folded, e.folded);
-      const lev = levenshteinSimilarity(label.folded, e.folded);
-      if (lexical > out[offset + 2]) out[offset + 2] = lexical;
-      if (tfidf > out[offset + 3]) out[offset + 3] = tfidf;
-      if (trigram > out[offset + 4]) out[offset + 4] = trigram;
-      if (jw > out[offset + 5]) out[offset + 5] = jw;
-      if (lev > out[offset + 6]) out[offset + 6] = lev;
-      const key = trigram * 2 + tfidf;
-      if (key > bestKey) {
-        bestKey = key;
-        bestTerm = e.term;
-      }
-    }
-    return { bestTerm };
+    return lexicalOfTerms(label, this.terms(c), this.df, out, offset, skipTerm);
   }
+}
+
+function fillLexical(e: TermEntry): void {
+  if (e.lexical === undefined) {
+    e.lexical = lexicalKeyOfFolded(e.folded);
+    e.stems = e.lexical === '' ? [] : e.lexical.split(' ');
+  }
+}
+
+/**
+ * The lexical features of `label` against the terms `terms` of one concept, as
+ * ReleaseFeatures.lexical describes (which calls this with the concept's cached entries; the
+ * re-scoring worker, lexicalWorker.ts, with entries of the texts it was sent).
+ */
+export function lexicalOfTerms(label: TextForms, terms: readonly TermEntry[], df: DocumentFrequencies, out: Float64Array, offset = 0, skipTerm = -1): LexicalMatch {
+  for (let j = 0; j < LEXICAL_COUNT; j++) out[offset + j] = 0;
+  let foldedHit = -1;
+  let exact = 0;
+  for (const e of terms) {
+    if (e.term === skipTerm) continue;
+    if (e.nfc === label.nfc) exact = 1;
+    if (foldedHit < 0 && e.folded === label.folded) foldedHit = e.term;
+  }
+  if (foldedHit >= 0) {
+    out[offset] = exact;
+    for (let j = 1; j < LEXICAL_COUNT; j++) out[offset + j] = 1;
+    return { bestTerm: foldedHit };
+  }
+  let bestTerm = -1;
+  let bestKey = -1;
+  for (const e of terms) {
+    if (e.term === skipTerm) continue;
+    fillLexical(e);
+    const lexical = e.lexical !== '' && e.lexical === label.lexical ? 1 : 0;
+    const tfidf = tfidfCosine(label.stems, e.stems!, df);
+    const trigram = trigramDice(label.folded, e.folded);
+    const jw = jaroWinkler(label.folded, e.folded);
+    const lev = levenshteinSimilarity(label.folded, e.folded);
+    if (lexical > out[offset + 2]) out[offset + 2] = lexical;
+    if (tfidf > out[offset + 3]) out[offset + 3] = tfidf;
+    if (trigram > out[offset + 4]) out[offset + 4] = trigram;
+    if (jw > out[offset + 5]) out[offset + 5] = jw;
+    if (lev > out[offset + 6]) out[offset + 6] = lev;
+    const key = trigram * 2 + tfidf;
+    if (key > bestKey) {
+      bestKey = key;
+      bestTerm = e.term;
+    }
+  }
+  return { bestTerm };
 }
 
 // ---------------------------------------------------------------------------

@@ -26,14 +26,16 @@ import { categoryName, isActive, resolveHistory } from '../classify/context.js';
 import { conceptLabel } from '../classify/detector.js';
 import { foldTerm } from '../text/normalize.js';
 import { trigramDice } from '../text/similarity.js';
-import type { Change } from '../classify/types.js';
+import type { Change, ChangeOf } from '../classify/types.js';
+import type { IndexHit } from './conceptIndex.js';
 import type { Mapping, MappingSet, Release } from '../load/types.js';
 import { impactOf } from '../rank/rankByImpact.js';
 import {
-  AncestorIndex, FEATURE_COUNT, LEXICAL_COUNT, conceptContext, contextFeatures, textForms,
+  AncestorIndex, FEATURE_COUNT, LEXICAL_COUNT, activeTermsOf, conceptContext, contextFeatures, releaseDocumentFrequencies, textForms,
   type ConceptContext, type TextForms,
 } from './features.js';
 import { Scorer, trainScorer, type TrainOptions } from './trainScorer.js';
+import { startLexicalThread, type LexicalBatch, type LexicalResult } from './lexicalThread.js';
 import type { MappingResult, MappingSuggestion, ScorerInfo, Verdict } from './types.js';
 
 /** The concept with this id, or undefined. */
@@ -86,7 +88,16 @@ export interface RescoreOptions {
    * frontier only; the first search builds the release's ConceptIndex if the diff did not.
    */
   nearestSearch?: boolean;
+  /**
+   * Compute the lexical features of mappings whose target is unchanged in a worker thread
+   * (lexicalThread.ts): true whenever a worker can start, false never; default when there are
+   * at least THREAD_FROM_JOBS such mappings.
+   */
+  thread?: boolean;
 }
+
+/** Jobs per batch sent to the lexical worker. */
+const LEXICAL_BATCH = 4096;
 
 export interface RescoreResult {
   /** One result per mapping, in the order of the mapping set (rank them with rankByImpact). */
@@ -95,6 +106,15 @@ export interface RescoreResult {
 }
 
 type Reason = MappingSuggestion['reason'];
+
+/** A mapping's target as read in both releases (rescoreMappings, targetOf). */
+interface Target {
+  oldId: string | undefined;
+  id: string;
+  cOld: number | undefined;
+  cNew: number | undefined;
+  labelText: string;
+}
 
 interface Candidate {
   n: number;
@@ -144,16 +164,54 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   const newR = ctx.new;
   const oldH = ctx.input.oldHierarchy ?? ctx.input.newHierarchy;
   const newH = ctx.input.newHierarchy ?? ctx.input.oldHierarchy;
-  const scorer = options.scorer ?? trainScorer(newR, { hierarchy: newH, index: ctx.newIndex, categoryShiftShare: categoryShiftShare(ctx), ...options.training });
+  const resolveOld = (id: string): string | undefined => {
+    if (conceptIndexOf(oldR, id) >= 0) return id;
+    const colon = id.indexOf(':');
+    if (colon > 0 && !/^https?:/i.test(id)) {
+      const local = id.slice(colon + 1);
+      if (conceptIndexOf(oldR, local) >= 0) return local;
+    }
+    return undefined;
+  };
+  const resolveNew = (id: string): string | undefined => {
+    if (conceptIndexOf(newR, id) >= 0) return id;
+    const colon = id.indexOf(':');
+    if (colon > 0) {
+      const local = id.slice(colon + 1);
+      if (conceptIndexOf(newR, local) >= 0) return local;
+    }
+    return undefined;
+  };
+  /** The target of a mapping as read in both releases, and the text that stands for its label. */
+  const targetOf = (m: Mapping): Target => {
+    const oldId = resolveOld(m.targetId);
+    const id = oldId ?? resolveNew(m.targetId) ?? m.targetId;
+    const cOld = oldId !== undefined ? indexOf(oldR, oldId) : undefined;
+    const cNew = indexOf(newR, id);
+    const labelText = m.localLabel.trim() !== '' ? m.localLabel : cOld !== undefined ? conceptLabel(oldR, cOld) : '';
+    return { oldId, id, cOld, cNew, labelText };
+  };
+
+  // A mapping whose target is outside the changed frontier (the common case) needs the label's
+  // forms and its lexical features against the target's terms first of all: those go to a
+  // worker thread (lexicalThread.ts), in batches, while this thread trains the scorer and
+  // assesses the other mappings. Both use the document frequencies counted here.
+  const df = options.scorer?.df ?? options.training?.df ?? releaseDocumentFrequencies(newR, options.training?.dfTerms);
+  const targets = mappings.mappings.map(targetOf);
+  const jobOf = new Int32Array(mappings.mappings.length).fill(-1);
+  let jobs = 0;
+  targets.forEach((t, i) => {
+    if (t.cOld !== undefined && t.cNew !== undefined && isActive(oldR, t.cOld) && !ctx.olds.has(t.cOld) && !ctx.news.has(t.cNew)) jobOf[i] = jobs++;
+  });
   const oldAnc = oldH ? new AncestorIndex(oldH) : undefined;
   const newAnc = newH ? (newH === oldH ? oldAnc : new AncestorIndex(newH)) : undefined;
   const bothHierarchies = ctx.input.oldHierarchy !== undefined && ctx.input.newHierarchy !== undefined;
-  const oldFeatures = scorer.features(oldR);
-  const newFeatures = scorer.features(newR);
 
-  // Changes by concept id.
+  // Changes by concept id; retirements by their concept (its suggestions are candidates).
   const changesOf = new Map<string, Change[]>();
+  const retirementOf = new Map<string, ChangeOf<'retirement'>>();
   for (const c of changes) {
+    if (c.kind === 'retirement' && !retirementOf.has(c.from[0])) retirementOf.set(c.from[0], c);
     for (const id of new Set([...c.from, ...c.to])) {
       const list = changesOf.get(id);
       if (list) list.push(c);
@@ -195,12 +253,18 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     const c = conceptIndexOf(oldR, newR.conceptIds[n]);
     return c >= 0 && !ctx.olds.has(c) && oldR.conceptStatus[c] === newR.conceptStatus[n] ? c : -1;
   };
-  const lexical = (r: Release, label: TextForms, c: number): Float64Array => {
-    if (r === newR && oldFeatures.df === newFeatures.df) {
+  /** Where lexical(r, label, c) is computed: on the old concept when c is a new concept outside the frontier (both releases' features share the scorer's document frequencies). */
+  const lexicalSide = (r: Release, c: number): [Release, number] => {
+    if (r === newR) {
       const same = unchangedOld(c);
-      if (same >= 0) return lexical(oldR, label, same);
+      if (same >= 0) return [oldR, same];
     }
-    const key = `${r === oldR ? 'o' : 'n'}${c}\u0001${label.text}`;
+    return [r, c];
+  };
+  const lexKey = (r: Release, c: number, text: string) => `${r === oldR ? 'o' : 'n'}${c}\u0001${text}`;
+  const lexical = (r0: Release, label: TextForms, c0: number): Float64Array => {
+    const [r, c] = lexicalSide(r0, c0);
+    const key = lexKey(r, c, label.text);
     let v = lexCache.get(key);
     if (!v) {
       v = new Float64Array(LEXICAL_COUNT);
@@ -227,24 +291,109 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     return hits;
   };
 
-  const resolveOld = (id: string): string | undefined => {
-    if (conceptIndexOf(oldR, id) >= 0) return id;
-    const colon = id.indexOf(':');
-    if (colon > 0 && !/^https?:/i.test(id)) {
-      const local = id.slice(colon + 1);
-      if (conceptIndexOf(oldR, local) >= 0) return local;
-    }
-    return undefined;
+  // With a worker (lexicalThread.ts) the lexical work goes there, in batches answered in order,
+  // while this thread trains the scorer and assesses:
+  // 1. for each mapping whose target is outside the changed frontier (most of them), the
+  //    label's forms and its features against the target (the "jobs");
+  // 2. for the other mappings, the features against the concepts their assessment will likely
+  //    score: the target and what the structure offers (groups, term flow, history, retirement
+  //    suggestions, frontier text);
+  // 3. and, once the nearest-concept searches those assessments surely run are answered (they
+  //    start now, on the index's worker), the features against the hits.
+  // Answers to 2 and 3 go into lexCache; what was not asked is computed here, as without a worker.
+  const thread = startLexicalThread(df, jobs, options.thread);
+  const newBatch = (): LexicalBatch => ({ labels: [], termStart: new Int32Array(LEXICAL_BATCH + 1), terms: [] });
+  let batch = newBatch();
+  /** lexCache keys of each posted batch of 2 or 3 (undefined for a batch of jobs). */
+  const batchKeys: (string[] | undefined)[] = [];
+  let keys: string[] = [];
+  const post = () => {
+    if (batch.labels.length === 0) return;
+    thread!.post({ ...batch, termStart: batch.termStart.slice(0, batch.labels.length + 1) });
+    batchKeys.push(keys.length ? keys : undefined);
+    batch = newBatch();
+    keys = [];
   };
-  const resolveNew = (id: string): string | undefined => {
-    if (conceptIndexOf(newR, id) >= 0) return id;
-    const colon = id.indexOf(':');
-    if (colon > 0) {
-      const local = id.slice(colon + 1);
-      if (conceptIndexOf(newR, local) >= 0) return local;
-    }
-    return undefined;
+  const push = (text: string, r: Release, c: number) => {
+    batch.labels.push(text);
+    for (const term of activeTermsOf(r, c)) batch.terms.push(termTextAt(r, term));
+    batch.termStart[batch.labels.length] = batch.terms.length;
   };
+  const asked = new Set<string>();
+  /** Ask the worker for lexical(r, label, c), unless known or asked already. */
+  const ask = (text: string, r0: Release, c0: number) => {
+    const [r, c] = lexicalSide(r0, c0);
+    const key = lexKey(r, c, text);
+    if (asked.has(key) || lexCache.has(key)) return;
+    asked.add(key);
+    keys.push(key);
+    push(text, r, c);
+    if (batch.labels.length === LEXICAL_BATCH) post();
+  };
+  /** Take the answer to batch b and put its features into lexCache. */
+  const fill = (b: number) => {
+    const result = thread!.take(b);
+    if (!result) return;
+    batchKeys[b]!.forEach((key, k) => lexCache.set(key, result.features.subarray(k * LEXICAL_COUNT, (k + 1) * LEXICAL_COUNT)));
+  };
+  /** Does assess search the whole release for this mapping whatever the scores (unknown, inactive, reused or retired without carrier)? */
+  const searchesSurely = (t: Target): boolean => {
+    if (options.nearestSearch === false || t.labelText.trim() === '') return false;
+    if (t.cOld === undefined || !isActive(oldR, t.cOld)) return true;
+    const node = ctx.olds.get(t.cOld);
+    if (!node) return false;
+    if (node.fate === 'reused') return true;
+    return (node.fate === 'retired' || node.fate === 'absent') && (node.group >= 0 ? ctx.groups[node.group].kind : 'retirement') === 'retirement';
+  };
+  /** Active new concepts the assessment of a mapping outside the jobs will likely score, search hits aside. */
+  const likely = (t: Target): number[] => {
+    const out: number[] = [];
+    if (t.cNew !== undefined) out.push(t.cNew);
+    const node = t.cOld !== undefined ? ctx.olds.get(t.cOld) : undefined;
+    if (node) {
+      if (node.group >= 0) out.push(...ctx.groups[node.group].news);
+      if (node.flows) out.push(...node.flows.keys());
+    }
+    const h = ctx.input.history;
+    if (h) for (const strong of [true, false]) for (const id of resolveHistory(h, newR, t.id, strong).targets) out.push(indexOf(newR, id) ?? -1);
+    for (const s of retirementOf.get(t.id)?.evidence.suggestions ?? []) out.push(indexOf(newR, s.concept_id) ?? -1);
+    const label = formsOf(t.labelText);
+    for (const key of [`f${label.folded}`, `l${label.lexical}`]) out.push(...(frontierText.get(key) ?? []));
+    return out.filter((n) => n >= 0 && isActive(newR, n));
+  };
+  let jobBatches = 0;
+  let structureBatches = 0;
+  const searchTexts: string[] = [];
+  let takeHits: (() => IndexHit[][]) | undefined;
+  if (thread) {
+    targets.forEach((t, i) => {
+      if (jobOf[i] < 0) return;
+      push(t.labelText, oldR, t.cOld!);
+      if (batch.labels.length === LEXICAL_BATCH) post();
+    });
+    post();
+    jobBatches = batchKeys.length;
+    targets.forEach((t, i) => {
+      if (jobOf[i] >= 0) return;
+      if (t.cOld !== undefined) ask(t.labelText, oldR, t.cOld);
+      for (const n of likely(t)) ask(t.labelText, newR, n);
+    });
+    post();
+    structureBatches = batchKeys.length - jobBatches;
+    const seen = new Set<string>();
+    targets.forEach((t, i) => {
+      if (jobOf[i] < 0 && searchesSurely(t) && !seen.has(t.labelText)) {
+        seen.add(t.labelText);
+        searchTexts.push(t.labelText);
+      }
+    });
+    if (searchTexts.length) takeHits = ctx.searchAhead(searchTexts.map((text) => ({ texts: [text], limit: th.searchHits, skipConcept: -1 })));
+  }
+
+  const scorer = options.scorer ?? trainScorer(newR, { hierarchy: newH, index: ctx.newIndex, categoryShiftShare: categoryShiftShare(ctx), df, ...options.training });
+  const oldFeatures = scorer.features(oldR);
+  const newFeatures = scorer.features(newR);
+
   const newLabel = (n: number) => conceptLabel(newR, n);
   /** Folded forms of every term of new concept n (any status), once per concept. */
   const foldedTerms = new Map<number, string[]>();
@@ -258,16 +407,19 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     return list;
   };
 
-  function assess(m: Mapping): MappingResult {
+  /** `pre`: the label's forms and its features against the old target, from the worker. */
+  function assess(i: number, pre?: { result: LexicalResult; job: number }): MappingResult {
+    const m = mappings.mappings[i];
     const reasons: string[] = [];
     const candidates = new Map<number, Candidate>();
-    const oldId = resolveOld(m.targetId);
-    const id = oldId ?? resolveNew(m.targetId) ?? m.targetId;
-    const cOld = oldId !== undefined ? indexOf(oldR, oldId) : undefined;
-    const cNewAny = indexOf(newR, id);
-    const labelText = m.localLabel.trim() !== '' ? m.localLabel : cOld !== undefined ? conceptLabel(oldR, cOld) : '';
+    const { oldId, id, cOld, cNew: cNewAny, labelText } = targets[i];
     if (m.localLabel.trim() === '' && cOld !== undefined) reasons.push("The mapping has no label; the target's old preferred term stands in for it.");
-    const label = formsOf(labelText);
+    let label: TextForms;
+    if (pre) {
+      const f = pre.result.forms;
+      const k = 3 * pre.job;
+      label = { text: labelText, nfc: f[k], folded: f[k + 1], lexical: f[k + 2], stems: f[k + 2] === '' ? [] : f[k + 2].split(' ') };
+    } else label = formsOf(labelText);
     const targetCtx = cOld !== undefined ? conceptContext(oldR, cOld, oldAnc) : null;
     const change_ids = (changesOf.get(id) ?? []).map((c) => c.id);
     if (oldId !== undefined && oldId !== m.targetId) reasons.push(`The target ${m.targetId} was read as ${oldId}, its local part.`);
@@ -330,7 +482,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
       return finish('unknown_target', null, inNew ? scoreNew(label, cNewAny, null) : null);
     }
 
-    const lexOld = lexical(oldR, label, cOld);
+    const lexOld = pre ? pre.result.features.subarray(pre.job * LEXICAL_COUNT, (pre.job + 1) * LEXICAL_COUNT) : lexical(oldR, label, cOld);
     const scoreOld = probability(lexOld, targetCtx, targetCtx!);
     if (scoreOld < th.weakMatch) reasons.push(`The label matched the target weakly already in the old release (${round3(scoreOld)}).`);
 
@@ -396,8 +548,8 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
         reasons.push(`${id} ${status} and no concept carries its terms.`);
         addHistory();
         flowTargets();
-        const retirement = changes.find((c) => c.kind === 'retirement' && c.from[0] === id);
-        if (retirement && retirement.kind === 'retirement') for (const s of retirement.evidence.suggestions) add(indexOf(newR, s.concept_id), s.reason);
+        const retirement = retirementOf.get(id);
+        if (retirement) for (const s of retirement.evidence.suggestions) add(indexOf(newR, s.concept_id), s.reason);
         addFrontier(nodeFlows);
         addSearch();
         const list = ranked();
@@ -545,5 +697,35 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     return `The parents of ${id} changed: ${parts.join('; ')}.`;
   }
 
-  return { mappings: mappings.mappings.map(assess), scorer: scorer.info };
+  if (!thread) return { mappings: mappings.mappings.map((_, i) => assess(i)), scorer: scorer.info };
+  // With the worker, in the order its answers come. The order changes nothing but the caches'
+  // filling: each result is a function of its mapping (tests/rescore/lexicalThread.test.ts).
+  const results: MappingResult[] = new Array(mappings.mappings.length);
+  const byJob = new Int32Array(jobs);
+  jobOf.forEach((j, i) => {
+    if (j >= 0) byJob[j] = i;
+  });
+  for (let b = 0; b < jobBatches; b++) {
+    const result = thread.take(b);
+    for (let j = b * LEXICAL_BATCH; j < Math.min(jobs, (b + 1) * LEXICAL_BATCH); j++) results[byJob[j]] = assess(byJob[j], result && { result, job: j - b * LEXICAL_BATCH });
+  }
+  for (let b = jobBatches; b < jobBatches + structureBatches; b++) fill(b);
+  if (takeHits) {
+    const hits = takeHits();
+    searchTexts.forEach((text, k) => searchCache.set(text, hits[k].map((h) => h.concept)));
+    targets.forEach((t, i) => {
+      if (jobOf[i] < 0 && searchesSurely(t)) for (const n of searchCache.get(t.labelText)!) if (isActive(newR, n)) ask(t.labelText, newR, n);
+    });
+    post();
+  }
+  // Mappings that search last, so that the hits' features are on their way meanwhile.
+  targets.forEach((t, i) => {
+    if (jobOf[i] < 0 && !searchesSurely(t)) results[i] = assess(i);
+  });
+  for (let b = jobBatches + structureBatches; b < batchKeys.length; b++) fill(b);
+  targets.forEach((t, i) => {
+    if (jobOf[i] < 0 && searchesSurely(t)) results[i] = assess(i);
+  });
+  thread.close();
+  return { mappings: results, scorer: scorer.info };
 }
