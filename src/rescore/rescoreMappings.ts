@@ -17,7 +17,9 @@
  *
  * Speed: a target whose concept is outside the changed frontier has the same terms in both
  * releases, so its lexical features are computed once and shared; such a mapping runs no
- * search. Label forms, per-concept term forms and searches (by label text) are cached.
+ * search. Label forms, per-concept term forms and searches (by label text) are cached. On a
+ * large set the lexical features go to a worker thread (./lexicalThread.ts) while this thread
+ * trains the scorer; the results do not depend on it (tests/rescore/lexicalThread.test.ts).
  */
 import { conceptIndexOf, termTextAt } from '../load/releaseBytes.js';
 
