@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { loadPair } from '../helpers/releases.js';
-import { localVariant, trainScorer } from '../../src/rescore/trainScorer.js';
+import { localVariant, neighbourFinder, trainScorer } from '../../src/rescore/trainScorer.js';
 import { SeededRandom } from '../../src/rescore/random.js';
 import { FEATURES, textForms } from '../../src/rescore/features.js';
 import { BASE, BASE_HIERARCHY } from './fixtures.js';
@@ -19,6 +19,26 @@ describe('trainScorer', () => {
     expect(a.info.pairs_held_out).toBeGreaterThan(0.15 * 8 * 36);
     const c = trainScorer(r, { hierarchy: newHierarchy, seed: 8 });
     expect(c.info.weights).not.toEqual(a.info.weights);
+  });
+
+  it('picks the same neighbours whatever concepts it was told to expect', async () => {
+    // Siblings under G1 (B01, B05, B06), G2 (B07, B08), G3 (B21, B22); a concept with two parents.
+    const { new: r, newHierarchy } = await loadPair({ old: BASE, new: BASE, newHierarchy: BASE_HIERARCHY + 'B08 < G1\n' });
+    const all = Array.from({ length: r.conceptCount }, (_, c) => c);
+    const picks = (focus: number[]) => {
+      const find = neighbourFinder(r, all, newHierarchy, focus);
+      const rng = new SeededRandom(11);
+      return Array.from({ length: 200 }, (_, k) => find(all[k % all.length], rng));
+    };
+    const everything = picks(all);
+    const id = (c: number | undefined) => (c === undefined ? undefined : r.conceptIds[c]);
+    const b08 = r.conceptIndex.get('B08')!;
+    // B08's neighbours: a sibling under G1 or G2, never itself.
+    expect(new Set(everything.filter((_, k) => all[k % all.length] === b08).map(id)).size).toBeGreaterThan(1);
+    expect(everything.filter((_, k) => all[k % all.length] === b08).map(id)).not.toContain('B08');
+    expect(picks([])).toEqual(everything); // every concept outside the focus
+    expect(picks([b08])).toEqual(everything);
+    expect(picks(all.slice(0, 5))).toEqual(everything);
   });
 
   it('learns weights that favour matching text', async () => {
