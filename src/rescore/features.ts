@@ -232,6 +232,8 @@ export function lexicalOfTerms(label: TextForms, terms: readonly TermEntry[], df
 // Context: category and hierarchy
 
 /** Ancestors of concepts in one hierarchy, with their shortest distance, cached. */
+const NO_PARENTS: readonly string[] = [];
+
 export class AncestorIndex {
   readonly hierarchy: Hierarchy;
   private readonly cache = new Map<string, Map<string, number>>();
@@ -263,6 +265,47 @@ export class AncestorIndex {
     }
     this.cache.set(id, found);
     return found;
+  }
+
+  /** Does `id` have any ancestor (a parent other than itself)? */
+  hasAncestors(id: string): boolean {
+    const cached = this.cache.get(id);
+    if (cached) return cached.size > 0;
+    for (const p of this.hierarchy.parents.get(id) ?? []) if (p !== id) return true;
+    return false;
+  }
+
+  /**
+   * Are the ancestors of `id` (to `ANCESTOR_DEPTH` levels, with their depths) the same in
+   * `other`? True when every concept the walk of `ancestors` expands has the same parent list in
+   * both hierarchies, which makes the two walks the same step by step; found without building
+   * either map. (False can also mean equal maps reached another way: callers then compare them.)
+   */
+  sameAncestors(other: AncestorIndex, id: string): boolean {
+    const a = this.hierarchy.parents;
+    const b = other.hierarchy.parents;
+    if (a === b) return true;
+    const found = new Set<string>();
+    let frontier = [id];
+    for (let depth = 1; depth <= ANCESTOR_DEPTH && frontier.length; depth++) {
+      const next: string[] = [];
+      for (const cur of frontier) {
+        const pa = a.get(cur) ?? NO_PARENTS;
+        const pb = b.get(cur) ?? NO_PARENTS;
+        if (pa !== pb) {
+          if (pa.length !== pb.length) return false;
+          for (let k = 0; k < pa.length; k++) if (pa[k] !== pb[k]) return false;
+        }
+        if (depth === ANCESTOR_DEPTH) continue;
+        for (const p of pa) {
+          if (p === id || found.has(p)) continue;
+          found.add(p);
+          next.push(p);
+        }
+      }
+      frontier = next;
+    }
+    return true;
   }
 
   /** Parents of `id`, sorted, deduplicated. */

@@ -33,7 +33,7 @@ import type { IndexHit } from './conceptIndex.js';
 import type { Mapping, MappingSet, Release } from '../load/types.js';
 import { impactOf } from '../rank/rankByImpact.js';
 import {
-  AncestorIndex, FEATURE_COUNT, LEXICAL_COUNT, activeTermsOf, conceptContext, contextFeatures, releaseDocumentFrequencies, textForms,
+  AncestorIndex, FEATURE_COUNT, LEXICAL_COUNT, activeTermsOf, ancestorSimilarity, conceptContext, contextFeatures, releaseDocumentFrequencies, textForms,
   type ConceptContext, type TextForms,
 } from './features.js';
 import { Scorer, trainScorer, type TrainOptions } from './trainScorer.js';
@@ -281,6 +281,34 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     contextFeatures(target, candidate, x, LEXICAL_COUNT);
     return scorer.probability(x);
   };
+  /**
+   * probability(lex, context of the old target, context of the candidate) where the candidate is
+   * the target itself: in the old release (cNew undefined), or in the new release when it is
+   * outside the changed frontier (same id). The same features without building ancestor maps
+   * when the target's ancestry is the same in both hierarchies (then the weighted Jaccard is 1,
+   * or both sets are empty), which holds for most mappings.
+   */
+  const selfScore = (lex: Float64Array, cOld: number, cNew?: number): number => {
+    x.set(lex);
+    const category = conceptContext(oldR, cOld).category;
+    contextFeatures({ category, ancestors: null }, { category: cNew === undefined ? category : conceptContext(newR, cNew).category, ancestors: null }, x, LEXICAL_COUNT);
+    const anc = cNew === undefined ? oldAnc : newAnc;
+    if (oldAnc && anc) {
+      const id = oldR.conceptIds[cOld];
+      let s = -1;
+      if (anc === oldAnc || oldAnc.sameAncestors(anc, id)) s = oldAnc.hasAncestors(id) ? 1 : -1;
+      else {
+        const a = oldAnc.ancestors(id);
+        const b = anc.ancestors(id);
+        if (a.size > 0 && b.size > 0) s = ancestorSimilarity(a, b);
+      }
+      if (s >= 0) {
+        x[LEXICAL_COUNT + 2] = s;
+        if (s === 0) x[LEXICAL_COUNT + 3] = 1;
+      }
+    }
+    return scorer.probability(x);
+  };
   const newContext = (n: number) => conceptContext(newR, n, newAnc);
   const scoreNew = (label: TextForms, n: number, target: ConceptContext | null, lex?: Float64Array) => probability(lex ?? lexical(newR, label, n), target, newContext(n));
   const searchCache = new Map<string, number[]>();
@@ -422,7 +450,9 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
       const k = 3 * pre.job;
       label = { text: labelText, nfc: f[k], folded: f[k + 1], lexical: f[k + 2], stems: f[k + 2] === '' ? [] : f[k + 2].split(' ') };
     } else label = formsOf(labelText);
-    const targetCtx = cOld !== undefined ? conceptContext(oldR, cOld, oldAnc) : null;
+    let targetContext: ConceptContext | null | undefined;
+    /** The old target's context, built on first need (a mapping outside the frontier seldom needs it). */
+    const targetCtx = () => (targetContext === undefined ? (targetContext = cOld !== undefined ? conceptContext(oldR, cOld, oldAnc) : null) : targetContext);
     const change_ids = (changesOf.get(id) ?? []).map((c) => c.id);
     if (oldId !== undefined && oldId !== m.targetId) reasons.push(`The target ${m.targetId} was read as ${oldId}, its local part.`);
 
@@ -450,7 +480,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
      * where the exact wording is the better evidence.
      */
     const ranked = (): Candidate[] => {
-      for (const cand of candidates.values()) if (cand.score < 0) cand.score = scoreNew(label, cand.n, targetCtx);
+      for (const cand of candidates.values()) if (cand.score < 0) cand.score = scoreNew(label, cand.n, targetCtx());
       const key = (c: Candidate) => c.score + (holdsLabel(c.n) ? TIE_MARGIN : 0);
       return [...candidates.values()].sort((a, b) => key(b) - key(a) || b.score - a.score || (newR.conceptIds[a.n] < newR.conceptIds[b.n] ? -1 : 1));
     };
@@ -485,7 +515,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     }
 
     const lexOld = pre ? pre.result.features.subarray(pre.job * LEXICAL_COUNT, (pre.job + 1) * LEXICAL_COUNT) : lexical(oldR, label, cOld);
-    const scoreOld = probability(lexOld, targetCtx, targetCtx!);
+    const scoreOld = selfScore(lexOld, cOld);
     if (scoreOld < th.weakMatch) reasons.push(`The label matched the target weakly already in the old release (${round3(scoreOld)}).`);
 
     // Already inactive in the old release.
@@ -493,7 +523,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
       reasons.unshift(`${id} was already inactive in the old release.`);
       addHistory();
       addSearch();
-      return finish('broken', scoreOld, cNewAny !== undefined ? scoreNew(label, cNewAny, targetCtx) : null);
+      return finish('broken', scoreOld, cNewAny !== undefined ? scoreNew(label, cNewAny, targetCtx()) : null);
     }
 
     const node = ctx.olds.get(cOld);
@@ -501,7 +531,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
 
     // Outside the changed frontier: same id, status, category and terms in both releases.
     if (!node && cNew !== undefined && !ctx.news.has(cNew)) {
-      const sNew = scoreNew(label, cNew, targetCtx, lexOld);
+      const sNew = selfScore(lexOld, cOld, cNew);
       candidates.set(cNew, { n: cNew, reason: 'current_target', score: sNew });
       addFrontier();
       const list = candidates.size > 1 ? ranked() : [];
@@ -512,7 +542,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
       }
       const moved = parentsChanged(id);
       if (moved) {
-        reasons.unshift(moved, `The target's terms are unchanged and the label still matches it (${round3(probability(lexOld, targetCtx, targetCtx!))}).`);
+        reasons.unshift(moved, `The target's terms are unchanged and the label still matches it (${round3(scoreOld)}).`);
         return finish('context_changed', scoreOld, sNew, 'target');
       }
       reasons.unshift('The target is unchanged.');
@@ -526,7 +556,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     };
     const fate = node?.fate ?? 'continues';
     const group = node && node.group >= 0 ? ctx.groups[node.group] : undefined;
-    const sNewTarget = cNew !== undefined ? scoreNew(label, cNew, targetCtx) : null;
+    const sNewTarget = cNew !== undefined ? scoreNew(label, cNew, targetCtx()) : null;
 
     // Identifier reused for another meaning.
     if (fate === 'reused') {
@@ -611,9 +641,9 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     flowTargets();
     addFrontier(nodeFlows);
     const lexNew = lexical(newR, label, n);
-    const sNew = scoreNew(label, n, targetCtx, lexNew);
+    const sNew = scoreNew(label, n, targetCtx(), lexNew);
     /** The new score as if the context had not changed: lexical change only. */
-    const sLexNew = probability(lexNew, targetCtx, targetCtx!);
+    const sLexNew = selfScore(lexNew, cOld);
     if (group && group.olds.includes(cOld) && (group.kind === 'split' || group.kind === 'reorganization')) {
       for (const p of group.news) add(p, group.basis === 'history' ? 'history' : 'term_flow');
       const parts = group.news.filter((p) => p !== n).map((p) => newR.conceptIds[p]).join(', ');
@@ -627,7 +657,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     if (home >= 0) {
       add(home, 'term_flow');
       const moved = candidates.get(home)!;
-      reasons.unshift(`The label matches best the term ${quote(movedTermText)}, which moved from ${id} to ${describe({ ...moved, score: moved.score < 0 ? scoreNew(label, home, targetCtx) : moved.score })}.`);
+      reasons.unshift(`The label matches best the term ${quote(movedTermText)}, which moved from ${id} to ${describe({ ...moved, score: moved.score < 0 ? scoreNew(label, home, targetCtx()) : moved.score })}.`);
       return finish('drifted', scoreOld, sNew, 'all', home);
     }
     let list = ranked();
@@ -690,6 +720,9 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   /** A sentence when the parents of `id` differ between the two hierarchies, else ''. */
   function parentsChanged(id: string): string {
     if (!bothHierarchies || !oldAnc || !newAnc) return '';
+    const a = oldAnc.hierarchy.parents.get(id) ?? [];
+    const b = newAnc.hierarchy.parents.get(id) ?? [];
+    if (a.length === b.length && a.every((p, k) => p === b[k])) return '';
     const before = oldAnc.parents(id);
     const after = newAnc.parents(id);
     if (before.join('\u0001') === after.join('\u0001')) return '';

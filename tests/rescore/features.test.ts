@@ -82,6 +82,30 @@ describe('context features', () => {
     expect([...idx.ancestors('X')]).toEqual([['Y', 1]]);
   });
 
+  it('tells when a concept has the same ancestors in two hierarchies without building them', () => {
+    const before = [['A', 'P'], ['P', 'G'], ['G', 'GG'], ['GG', 'GGG'], ['B', 'Q'], ['Q', 'G'], ['C', 'C'], ['X', 'Y'], ['Y', 'X']] as [string, string][];
+    const old = new AncestorIndex(hierarchy(before));
+    // GG's parent changed: A's walk (P, G, GG) never expands GG; P's walk (G, GG, GGG) does.
+    const moved = new AncestorIndex(hierarchy(before.map(([c, p]) => (c === 'GG' ? [c, 'OTHER'] : [c, p]))));
+    // Q's parent changed: B's ancestry differs at depth 2.
+    const reparented = new AncestorIndex(hierarchy(before.map(([c, p]) => (c === 'Q' ? [c, 'R'] : [c, p]))));
+    for (const other of [old, moved, reparented, new AncestorIndex(hierarchy(before))]) {
+      for (const id of ['A', 'P', 'G', 'B', 'Q', 'C', 'X', 'NONE']) {
+        const same = old.sameAncestors(other, id);
+        // "Same" is never wrong: the maps are then equal, depths included.
+        if (same) expect([...other.ancestors(id)]).toEqual([...old.ancestors(id)]);
+        expect(old.hasAncestors(id)).toBe(old.ancestors(id).size > 0);
+      }
+    }
+    expect(old.sameAncestors(old, 'A')).toBe(true);
+    expect(old.sameAncestors(moved, 'A')).toBe(true); // GG's parents lie beyond A's three levels
+    expect(old.sameAncestors(moved, 'P')).toBe(false); // … but are P's third level
+    expect(old.sameAncestors(reparented, 'B')).toBe(false);
+    expect(old.sameAncestors(reparented, 'A')).toBe(true);
+    expect(old.sameAncestors(reparented, 'X')).toBe(true); // a cycle ends the walk
+    expect([old.hasAncestors('C'), old.hasAncestors('NONE'), old.hasAncestors('X')]).toEqual([false, false, true]); // C is only its own parent
+  });
+
   it('weighted Jaccard of ancestors (hand-computed)', () => {
     // A: P(1), G(1/2); B: P(1), Q(1), G(1/2). Shared min: 1 + 1/2; union max: 1 + 1 + 1/2 → 0.6.
     expect(ancestorSimilarity(new Map([['P', 1], ['G', 2]]), new Map([['P', 1], ['Q', 1], ['G', 2]]))).toBeCloseTo(0.6, 12);
