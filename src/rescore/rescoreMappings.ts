@@ -166,30 +166,28 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   const newR = ctx.new;
   const oldH = ctx.input.oldHierarchy ?? ctx.input.newHierarchy;
   const newH = ctx.input.newHierarchy ?? ctx.input.oldHierarchy;
-  const resolveOld = (id: string): string | undefined => {
-    if (conceptIndexOf(oldR, id) >= 0) return id;
+  /** The id as the release has it (the id as given, else for a CURIE its local part) and its concept, or undefined. */
+  const resolve = (r: Release, id: string, curies: (id: string) => boolean): [string, number] | undefined => {
+    const c = conceptIndexOf(r, id);
+    if (c >= 0) return [id, c];
     const colon = id.indexOf(':');
-    if (colon > 0 && !/^https?:/i.test(id)) {
+    if (colon > 0 && curies(id)) {
       const local = id.slice(colon + 1);
-      if (conceptIndexOf(oldR, local) >= 0) return local;
+      const k = conceptIndexOf(r, local);
+      if (k >= 0) return [local, k];
     }
     return undefined;
   };
-  const resolveNew = (id: string): string | undefined => {
-    if (conceptIndexOf(newR, id) >= 0) return id;
-    const colon = id.indexOf(':');
-    if (colon > 0) {
-      const local = id.slice(colon + 1);
-      if (conceptIndexOf(newR, local) >= 0) return local;
-    }
-    return undefined;
-  };
-  /** The target of a mapping as read in both releases, and the text that stands for its label. */
+  const notUrl = (id: string) => !/^https?:/i.test(id);
+  const anyId = () => true;
+
   const targetOf = (m: Mapping): Target => {
-    const oldId = resolveOld(m.targetId);
-    const id = oldId ?? resolveNew(m.targetId) ?? m.targetId;
-    const cOld = oldId !== undefined ? indexOf(oldR, oldId) : undefined;
-    const cNew = indexOf(newR, id);
+    const inOld = resolve(oldR, m.targetId, notUrl);
+    const oldId = inOld?.[0];
+    const cOld = inOld?.[1];
+    const inNew = oldId !== undefined ? undefined : resolve(newR, m.targetId, anyId);
+    const id = oldId ?? inNew?.[0] ?? m.targetId;
+    const cNew = inNew ? inNew[1] : indexOf(newR, id);
     const labelText = m.localLabel.trim() !== '' ? m.localLabel : cOld !== undefined ? conceptLabel(oldR, cOld) : '';
     return { oldId, id, cOld, cNew, labelText };
   };
@@ -732,6 +730,28 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     return `The parents of ${id} changed: ${parts.join('; ')}.`;
   }
 
+  /**
+   * Will assess search for this mapping if a score falls short? Mirrors assess: a target merged
+   * into or replaced by one concept that the label scores below redirectMin against, or a target
+   * that continues with changed terms whose lexical score fell by more than driftDrop to below
+   * weakMatch. Only a guess for prefetching: assess decides.
+   */
+  function searchesIfWeak(t: Target): boolean {
+    if (t.cOld === undefined || t.labelText.trim() === '') return false;
+    const node = ctx.olds.get(t.cOld);
+    if (!node || node.fate === 'reused') return false;
+    const group = node.group >= 0 ? ctx.groups[node.group] : undefined;
+    const label = formsOf(t.labelText);
+    if (node.fate === 'retired' || node.fate === 'absent') {
+      if (!group || (group.kind !== 'merge' && group.kind !== 'replacement') || group.news.length !== 1) return false;
+      return scoreNew(label, group.news[0], conceptContext(oldR, t.cOld, oldAnc)) < th.redirectMin;
+    }
+    if (t.cNew === undefined || (group && group.olds.includes(t.cOld) && (group.kind === 'split' || group.kind === 'reorganization'))) return false;
+    const scoreOld = selfScore(lexical(oldR, label, t.cOld), t.cOld);
+    const sLexNew = selfScore(lexical(newR, label, t.cNew), t.cOld);
+    return scoreOld - sLexNew > th.driftDrop && sLexNew < th.weakMatch;
+  }
+
   if (!thread) return { mappings: mappings.mappings.map((_, i) => assess(i)), scorer: scorer.info };
   // With the worker, in the order its answers come. The order changes nothing but the caches'
   // filling: each result is a function of its mapping (tests/rescore/lexicalThread.test.ts).
@@ -745,6 +765,24 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     for (let j = b * LEXICAL_BATCH; j < Math.min(jobs, (b + 1) * LEXICAL_BATCH); j++) results[byJob[j]] = assess(byJob[j], result && { result, job: j - b * LEXICAL_BATCH });
   }
   for (let b = jobBatches; b < jobBatches + structureBatches; b++) fill(b);
+  // Mappings whose assessment searches only when a score falls short (a weak merge survivor, a
+  // target whose lexical score fell): found from the scores, now that the scorer is trained, and
+  // their searches sent to the index's worker too. A wrong guess costs only time: search() does
+  // what was not asked.
+  const maybe = new Uint8Array(targets.length);
+  const maybeTexts: string[] = [];
+  if (options.nearestSearch !== false) {
+    const pending = new Set(searchTexts);
+    targets.forEach((t, i) => {
+      if (jobOf[i] >= 0 || searchesSurely(t) || !searchesIfWeak(t)) return;
+      maybe[i] = 1;
+      if (!pending.has(t.labelText) && !searchCache.has(t.labelText)) {
+        pending.add(t.labelText);
+        maybeTexts.push(t.labelText);
+      }
+    });
+  }
+  const takeMaybe = maybeTexts.length ? ctx.searchAhead(maybeTexts.map((text) => ({ texts: [text], limit: th.searchHits, skipConcept: -1 }))) : undefined;
   if (takeHits) {
     const hits = takeHits();
     searchTexts.forEach((text, k) => searchCache.set(text, hits[k].map((h) => h.concept)));
@@ -753,13 +791,26 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     });
     post();
   }
+  const hitBatches = batchKeys.length;
   // Mappings that search last, so that the hits' features are on their way meanwhile.
   targets.forEach((t, i) => {
-    if (jobOf[i] < 0 && !searchesSurely(t)) results[i] = assess(i);
+    if (jobOf[i] < 0 && !maybe[i] && !searchesSurely(t)) results[i] = assess(i);
   });
-  for (let b = jobBatches + structureBatches; b < batchKeys.length; b++) fill(b);
+  if (takeMaybe) {
+    const hits = takeMaybe();
+    maybeTexts.forEach((text, k) => searchCache.set(text, hits[k].map((h) => h.concept)));
+    targets.forEach((t, i) => {
+      if (maybe[i]) for (const n of searchCache.get(t.labelText)!) if (isActive(newR, n)) ask(t.labelText, newR, n);
+    });
+    post();
+  }
+  for (let b = jobBatches + structureBatches; b < hitBatches; b++) fill(b);
   targets.forEach((t, i) => {
     if (jobOf[i] < 0 && searchesSurely(t)) results[i] = assess(i);
+  });
+  for (let b = hitBatches; b < batchKeys.length; b++) fill(b);
+  targets.forEach((t, i) => {
+    if (maybe[i]) results[i] = assess(i);
   });
   thread.close();
   return { mappings: results, scorer: scorer.info };
