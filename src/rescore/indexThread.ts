@@ -21,10 +21,9 @@
  */
 import { existsSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
-import { MessageChannel, Worker } from 'node:worker_threads';
 import type { Release } from '../load/types.js';
 import { ConceptIndex, indexSource, type ConceptIndexOptions, type IndexHit, type IndexParts } from './conceptIndex.js';
-import { WorkerAnswers, answerState } from './workerAnswers.js';
+import { startAnswering } from './workerAnswers.js';
 
 /** One nearest-concept search: the texts of a concept, as ConceptIndex.search takes them. */
 export interface SearchQuery {
@@ -89,27 +88,13 @@ export function startConceptIndex(release: Release, options: IndexThreadOptions 
   const src = indexSource(release);
   if (src.bytes === undefined) return local;
 
-  const state = answerState();
-  const { port1, port2 } = new MessageChannel();
   const bytes = src.bytes;
-  let worker: Worker;
-  try {
-    worker = new Worker(script, {
-      workerData: {
-        termCount: src.termCount, active: src.active, termConcept: release.termConcept, options: indexOptions,
-        blocks: bytes.blocks, termBlock: bytes.termBlock, textStart: bytes.textStart, textEnd: bytes.textEnd, state, port: port2,
-      },
-      transferList: [port2, src.active.buffer as ArrayBuffer],
-    });
-  } catch {
-    port1.close();
-    return local;
-  }
-  worker.unref();
-  // Failures are answered on the port, or noticed by the heartbeat; this only keeps an error event from going unhandled.
-  worker.on('error', () => {});
-
-  const answers = new WorkerAnswers<IndexAnswer>(state, port1, STALL_SECONDS, () => void worker.terminate());
+  const started = startAnswering<IndexAnswer>(script, {
+    termCount: src.termCount, active: src.active, termConcept: release.termConcept, options: indexOptions,
+    blocks: bytes.blocks, termBlock: bytes.termBlock, textStart: bytes.textStart, textEnd: bytes.textEnd,
+  }, [src.active.buffer as ArrayBuffer], STALL_SECONDS);
+  if (!started) return local;
+  const { answers, port } = started;
   const next = () => answers.next();
   const stop = () => answers.stop();
   let built: boolean | undefined;
@@ -134,7 +119,7 @@ export function startConceptIndex(release: Release, options: IndexThreadOptions 
       if (index !== undefined) return index;
       drain();
       if (waitBuilt() && answers.alive) {
-        port1.postMessage({ parts: true } satisfies IndexRequest);
+        port.postMessage({ parts: true } satisfies IndexRequest);
         const a = next();
         if (a && 'parts' in a) {
           index = new ConceptIndex(release, indexOptions, a.parts);
@@ -148,7 +133,7 @@ export function startConceptIndex(release: Release, options: IndexThreadOptions 
       if (index !== undefined || !answers.alive) return local.searchAhead(queries);
       const p: { hits?: IndexHit[][]; queries: SearchQuery[] } = { queries };
       pending.push(p);
-      port1.postMessage({ searches: queries } satisfies IndexRequest);
+      port.postMessage({ searches: queries } satisfies IndexRequest);
       return () => {
         if (p.hits === undefined) drain();
         return p.hits!;

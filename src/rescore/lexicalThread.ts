@@ -15,9 +15,8 @@
  */
 import { existsSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
-import { MessageChannel, Worker } from 'node:worker_threads';
 import type { DocumentFrequencies } from '../text/tfidf.js';
-import { WorkerAnswers, answerState } from './workerAnswers.js';
+import { startAnswering } from './workerAnswers.js';
 
 /** One batch of jobs: job i compares labels[i] with terms[termStart[i] .. termStart[i+1]). */
 export interface LexicalBatch {
@@ -63,24 +62,15 @@ export function startLexicalThread(df: DocumentFrequencies, jobs: number, thread
   if (jobs === 0 || !(thread ?? jobs >= THREAD_FROM_JOBS)) return undefined;
   const script = workerScript();
   if (script === undefined) return undefined;
-  const state = answerState();
-  const { port1, port2 } = new MessageChannel();
-  let worker: Worker;
-  try {
-    worker = new Worker(script, { workerData: { df: df.toParts(), state, port: port2 }, transferList: [port2] });
-  } catch {
-    port1.close();
-    return undefined;
-  }
-  worker.unref();
-  worker.on('error', () => {});
-  const answers = new WorkerAnswers<LexicalAnswer>(state, port1, STALL_SECONDS, () => void worker.terminate());
+  const started = startAnswering<LexicalAnswer>(script, { df: df.toParts() }, [], STALL_SECONDS);
+  if (!started) return undefined;
+  const { answers, port } = started;
   let posted = 0;
   /** Answers read so far, by batch number (a failed one is undefined). */
   const got: (LexicalResult | undefined)[] = [];
   return {
     post(batch) {
-      if (answers.alive) port1.postMessage(batch, [batch.termStart.buffer as ArrayBuffer]);
+      if (answers.alive) port.postMessage(batch, [batch.termStart.buffer as ArrayBuffer]);
       return posted++;
     },
     take(k) {

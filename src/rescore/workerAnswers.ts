@@ -9,7 +9,7 @@
  * Used by indexThread.ts (the nearest-concept index) and lexicalThread.ts (lexical features of
  * re-scoring); both do the work on the calling thread when an answer fails.
  */
-import { receiveMessageOnPort, type MessagePort } from 'node:worker_threads';
+import { MessageChannel, Worker, receiveMessageOnPort, type MessagePort, type TransferListItem } from 'node:worker_threads';
 
 /** Slots of the shared state: [POSTED] answers the worker has posted, [HEARTBEAT] its heartbeat. */
 export const POSTED = 0;
@@ -75,4 +75,25 @@ export class WorkerAnswers<T extends object> {
     this.port.close();
     this.onStop();
   }
+}
+
+/**
+ * Start the worker `script` with `data` (its `state` and `port` added here) and return its
+ * answers and the port to ask it on; undefined when it cannot start. The worker is unref'ed (it
+ * does not keep the process alive); its failures are answered on the port or noticed by the
+ * heartbeat, and its error event is only kept from going unhandled.
+ */
+export function startAnswering<T extends object>(script: URL, data: Record<string, unknown>, transfer: TransferListItem[], stallSeconds: number): { answers: WorkerAnswers<T>; port: MessagePort } | undefined {
+  const state = answerState();
+  const { port1, port2 } = new MessageChannel();
+  let worker: Worker;
+  try {
+    worker = new Worker(script, { workerData: { ...data, state, port: port2 }, transferList: [port2, ...transfer] });
+  } catch {
+    port1.close();
+    return undefined;
+  }
+  worker.unref();
+  worker.on('error', () => {});
+  return { answers: new WorkerAnswers<T>(state, port1, stallSeconds, () => void worker.terminate()), port: port1 };
 }
