@@ -231,9 +231,9 @@ export function lexicalOfTerms(label: TextForms, terms: readonly TermEntry[], df
 // ---------------------------------------------------------------------------
 // Context: category and hierarchy
 
-/** Ancestors of concepts in one hierarchy, with their shortest distance, cached. */
 const NO_PARENTS: readonly string[] = [];
 
+/** Ancestors of concepts in one hierarchy, with their shortest distance, cached. */
 export class AncestorIndex {
   readonly hierarchy: Hierarchy;
   private readonly cache = new Map<string, Map<string, number>>();
@@ -283,21 +283,15 @@ export class AncestorIndex {
    */
   sameAncestors(other: AncestorIndex, id: string): boolean {
     const a = this.hierarchy.parents;
-    const b = other.hierarchy.parents;
-    if (a === b) return true;
+    if (a === other.hierarchy.parents) return true;
     const found = new Set<string>();
     let frontier = [id];
     for (let depth = 1; depth <= ANCESTOR_DEPTH && frontier.length; depth++) {
       const next: string[] = [];
       for (const cur of frontier) {
-        const pa = a.get(cur) ?? NO_PARENTS;
-        const pb = b.get(cur) ?? NO_PARENTS;
-        if (pa !== pb) {
-          if (pa.length !== pb.length) return false;
-          for (let k = 0; k < pa.length; k++) if (pa[k] !== pb[k]) return false;
-        }
+        if (!this.sameParents(other, cur)) return false;
         if (depth === ANCESTOR_DEPTH) continue;
-        for (const p of pa) {
+        for (const p of a.get(cur) ?? NO_PARENTS) {
           if (p === id || found.has(p)) continue;
           found.add(p);
           next.push(p);
@@ -305,6 +299,16 @@ export class AncestorIndex {
       }
       frontier = next;
     }
+    return true;
+  }
+
+  /** Does `id` have the same parent list, as given, in `other`? (No parents and no entry are the same.) */
+  sameParents(other: AncestorIndex, id: string): boolean {
+    const pa = this.hierarchy.parents.get(id) ?? NO_PARENTS;
+    const pb = other.hierarchy.parents.get(id) ?? NO_PARENTS;
+    if (pa === pb) return true;
+    if (pa.length !== pb.length) return false;
+    for (let k = 0; k < pa.length; k++) if (pa[k] !== pb[k]) return false;
     return true;
   }
 

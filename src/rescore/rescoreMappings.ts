@@ -326,9 +326,11 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   // 2. for the other mappings, the features against the concepts their assessment will likely
   //    score: the target and what the structure offers (groups, term flow, history, retirement
   //    suggestions, frontier text);
-  // 3. and, once the nearest-concept searches those assessments surely run are answered (they
-  //    start now, on the index's worker), the features against the hits.
-  // Answers to 2 and 3 go into lexCache; what was not asked is computed here, as without a worker.
+  // 3. once the nearest-concept searches those assessments surely run are answered (they
+  //    start now, on the index's worker), the features against the hits;
+  // 4. and, after training, the same for the searches they run only when a score falls short
+  //    (searchesIfWeak, guessed from the trained scorer).
+  // Answers to 2 to 4 go into lexCache; what was not asked is computed here, as without a worker.
   const thread = startLexicalThread(df, jobs, options.thread);
   const newBatch = (): LexicalBatch => ({ labels: [], termStart: new Int32Array(LEXICAL_BATCH + 1), terms: [] });
   let batch = newBatch();
@@ -389,6 +391,17 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     for (const key of [`f${label.folded}`, `l${label.lexical}`]) out.push(...(frontierText.get(key) ?? []));
     return out.filter((n) => n >= 0 && isActive(newR, n));
   };
+  /** Start the searches of `texts` (as search() runs them) on the index's worker; the returned function waits for their hits. */
+  const searchAhead = (texts: string[]) => ctx.searchAhead(texts.map((text) => ({ texts: [text], limit: th.searchHits, skipConcept: -1 })));
+  /** Put the hits of `texts` into searchCache and ask the worker for their features against the labels of the mappings `which` picks. */
+  const receiveHits = (texts: string[], take: () => IndexHit[][], which: (t: Target, i: number) => boolean) => {
+    const hits = take();
+    texts.forEach((text, k) => searchCache.set(text, hits[k].map((h) => h.concept)));
+    targets.forEach((t, i) => {
+      if (which(t, i)) for (const n of searchCache.get(t.labelText)!) if (isActive(newR, n)) ask(t.labelText, newR, n);
+    });
+    post();
+  };
   let jobBatches = 0;
   let structureBatches = 0;
   const searchTexts: string[] = [];
@@ -415,7 +428,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
         searchTexts.push(t.labelText);
       }
     });
-    if (searchTexts.length) takeHits = ctx.searchAhead(searchTexts.map((text) => ({ texts: [text], limit: th.searchHits, skipConcept: -1 })));
+    if (searchTexts.length) takeHits = searchAhead(searchTexts);
   }
 
   const scorer = options.scorer ?? trainScorer(newR, { hierarchy: newH, index: ctx.newIndex, categoryShiftShare: categoryShiftShare(ctx), df, ...options.training });
@@ -718,9 +731,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   /** A sentence when the parents of `id` differ between the two hierarchies, else ''. */
   function parentsChanged(id: string): string {
     if (!bothHierarchies || !oldAnc || !newAnc) return '';
-    const a = oldAnc.hierarchy.parents.get(id) ?? [];
-    const b = newAnc.hierarchy.parents.get(id) ?? [];
-    if (a.length === b.length && a.every((p, k) => p === b[k])) return '';
+    if (oldAnc.sameParents(newAnc, id)) return '';
     const before = oldAnc.parents(id);
     const after = newAnc.parents(id);
     if (before.join('\u0001') === after.join('\u0001')) return '';
@@ -782,28 +793,14 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
       }
     });
   }
-  const takeMaybe = maybeTexts.length ? ctx.searchAhead(maybeTexts.map((text) => ({ texts: [text], limit: th.searchHits, skipConcept: -1 }))) : undefined;
-  if (takeHits) {
-    const hits = takeHits();
-    searchTexts.forEach((text, k) => searchCache.set(text, hits[k].map((h) => h.concept)));
-    targets.forEach((t, i) => {
-      if (jobOf[i] < 0 && searchesSurely(t)) for (const n of searchCache.get(t.labelText)!) if (isActive(newR, n)) ask(t.labelText, newR, n);
-    });
-    post();
-  }
+  const takeMaybe = maybeTexts.length ? searchAhead(maybeTexts) : undefined;
+  if (takeHits) receiveHits(searchTexts, takeHits, (t, i) => jobOf[i] < 0 && searchesSurely(t));
   const hitBatches = batchKeys.length;
   // Mappings that search last, so that the hits' features are on their way meanwhile.
   targets.forEach((t, i) => {
     if (jobOf[i] < 0 && !maybe[i] && !searchesSurely(t)) results[i] = assess(i);
   });
-  if (takeMaybe) {
-    const hits = takeMaybe();
-    maybeTexts.forEach((text, k) => searchCache.set(text, hits[k].map((h) => h.concept)));
-    targets.forEach((t, i) => {
-      if (maybe[i]) for (const n of searchCache.get(t.labelText)!) if (isActive(newR, n)) ask(t.labelText, newR, n);
-    });
-    post();
-  }
+  if (takeMaybe) receiveHits(maybeTexts, takeMaybe, (_, i) => maybe[i] === 1);
   for (let b = jobBatches + structureBatches; b < hitBatches; b++) fill(b);
   targets.forEach((t, i) => {
     if (jobOf[i] < 0 && searchesSurely(t)) results[i] = assess(i);

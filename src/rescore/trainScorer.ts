@@ -295,7 +295,6 @@ export function trainScorer(release: Release, options: TrainOptions = {}): Score
   const y = new Uint8Array(pairs);
   const owner = new Int32Array(pairs);
   let row = 0;
-
   /** `contextOf`: the concept standing for the old target (the label's concept unless said otherwise). */
   const addPair = (label: string, target: number, candidate: number, positive: boolean, skipTerm: number, contextOf = target, shiftCategory = false) => {
     const off = row * FEATURE_COUNT;

@@ -12,8 +12,8 @@
 import { MessageChannel, Worker, receiveMessageOnPort, type MessagePort, type TransferListItem } from 'node:worker_threads';
 
 /** Slots of the shared state: [POSTED] answers the worker has posted, [HEARTBEAT] its heartbeat. */
-export const POSTED = 0;
-export const HEARTBEAT = 1;
+const POSTED = 0;
+const HEARTBEAT = 1;
 
 /** A new shared state, to hand to the worker with its port. */
 export function answerState(): Int32Array {

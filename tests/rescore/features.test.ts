@@ -104,6 +104,7 @@ describe('context features', () => {
     expect(old.sameAncestors(reparented, 'A')).toBe(true);
     expect(old.sameAncestors(reparented, 'X')).toBe(true); // a cycle ends the walk
     expect([old.hasAncestors('C'), old.hasAncestors('NONE'), old.hasAncestors('X')]).toEqual([false, false, true]); // C is only its own parent
+    expect([old.sameParents(reparented, 'Q'), old.sameParents(reparented, 'A'), old.sameParents(reparented, 'NONE')]).toEqual([false, true, true]);
   });
 
   it('weighted Jaccard of ancestors (hand-computed)', () => {
