@@ -282,23 +282,25 @@ export class AncestorIndex {
    * either map. (False can also mean equal maps reached another way: callers then compare them.)
    */
   sameAncestors(other: AncestorIndex, id: string): boolean {
-    const a = this.hierarchy.parents;
-    if (a === other.hierarchy.parents) return true;
-    const found = new Set<string>();
-    let frontier = [id];
-    for (let depth = 1; depth <= ANCESTOR_DEPTH && frontier.length; depth++) {
-      const next: string[] = [];
-      for (const cur of frontier) {
-        if (!this.sameParents(other, cur)) return false;
-        if (depth === ANCESTOR_DEPTH) continue;
-        for (const p of a.get(cur) ?? NO_PARENTS) {
-          if (p === id || found.has(p)) continue;
-          found.add(p);
-          next.push(p);
-        }
-      }
-      frontier = next;
+    const b = other.hierarchy.parents;
+    return this.hierarchy.parents === b || this.sameWithin(b, id, id, ANCESTOR_DEPTH);
+  }
+
+  /**
+   * Does every concept within k - 1 steps up from `cur` (the walk's `depth` levels: `cur` is
+   * expanded unless k is 1; `root` is not walked again) have the same parent list in `b`? Each
+   * list is looked up once per visit and walked from; no set, no arrays. A concept reached by two
+   * paths may be compared twice, which changes nothing.
+   */
+  private sameWithin(b: Map<string, string[]>, root: string, cur: string, k: number): boolean {
+    const pa = this.hierarchy.parents.get(cur) ?? NO_PARENTS;
+    const pb = b.get(cur) ?? NO_PARENTS;
+    if (pa !== pb) {
+      if (pa.length !== pb.length) return false;
+      for (let j = 0; j < pa.length; j++) if (pa[j] !== pb[j]) return false;
     }
+    if (k === 1) return true;
+    for (const p of pa) if (p !== root && !this.sameWithin(b, root, p, k - 1)) return false;
     return true;
   }
 

@@ -187,7 +187,9 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     const cOld = inOld?.[1];
     const inNew = oldId !== undefined ? undefined : resolve(newR, m.targetId, anyId);
     const id = oldId ?? inNew?.[0] ?? m.targetId;
-    const cNew = inNew ? inNew[1] : indexOf(newR, id);
+    // The same id in the new release: the alignment's match of the old concept (no lookup).
+    const same = cOld !== undefined ? ctx.align.sameId[cOld] : -1;
+    const cNew = inNew ? inNew[1] : same >= 0 ? same : undefined;
     const labelText = m.localLabel.trim() !== '' ? m.localLabel : cOld !== undefined ? conceptLabel(oldR, cOld) : '';
     return { oldId, id, cOld, cNew, labelText };
   };
@@ -248,9 +250,16 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   // multiset, which the features, maxima over the terms, do not see the order of) in both releases (align/types.ts), and both releases' features share one set of
   // document frequencies, so its lexical features are the same in both: computed once, on the
   // old concept. (Most mappings point at such concepts.)
+  let oldOfNew: Int32Array | undefined;
   const unchangedOld = (n: number): number => {
     if (ctx.news.has(n)) return -1;
-    const c = conceptIndexOf(oldR, newR.conceptIds[n]);
+    if (!oldOfNew) {
+      oldOfNew = new Int32Array(newR.conceptCount).fill(-1);
+      ctx.align.sameId.forEach((k, c) => {
+        if (k >= 0) oldOfNew![k] = c;
+      });
+    }
+    const c = oldOfNew[n];
     return c >= 0 && !ctx.olds.has(c) && oldR.conceptStatus[c] === newR.conceptStatus[n] ? c : -1;
   };
   /** Where lexical(r, label, c) is computed: on the old concept when c is a new concept outside the frontier (both releases' features share the scorer's document frequencies). */

@@ -2,7 +2,6 @@
 import type { Detector } from '../detector.js';
 import { makeChange } from '../detector.js';
 import { isActive } from '../context.js';
-import { matchConceptIds } from '../../load/releaseBytes.js';
 
 const EMPTY: readonly string[] = [];
 
@@ -26,9 +25,9 @@ export const hierarchyChange: Detector<'hierarchy_change'> = {
     const nh = ctx.input.newHierarchy;
     if (!oh || !nh) return [];
     const out = [];
-    // Every concept of the old release with the same id in the new one (a merge of the two id
-    // lists; no lookup per hierarchy row), in the release's id order.
-    const match = matchConceptIds(ctx.old, ctx.new);
+    // Every concept of the old release with the same id in the new one (the alignment's match of
+    // the two id lists; no lookup per hierarchy row), in the release's id order.
+    const match = ctx.align.sameId;
     for (let c = 0; c < ctx.old.conceptCount; c++) {
       const n = match[c];
       if (n < 0 || !isActive(ctx.old, c) || !isActive(ctx.new, n)) continue;
