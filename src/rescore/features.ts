@@ -77,11 +77,10 @@ export function activeTermsOf(r: Release, c: number): number[] {
  */
 export function releaseDocumentFrequencies(r: Release, maxTerms = 100_000): DocumentFrequencies {
   const df = new DocumentFrequencies();
-  const active: number[] = [];
-  for (let t = 0; t < r.termCount; t++) {
-    if (r.termStatus[t] === ACTIVE && r.conceptStatus[r.termConcept[t]] === ACTIVE) active.push(t);
-  }
-  const step = Math.max(1, active.length / maxTerms);
+  const isCounted = (t: number) => r.termStatus[t] === ACTIVE && r.conceptStatus[r.termConcept[t]] === ACTIVE;
+  let activeCount = 0;
+  for (let t = 0; t < r.termCount; t++) if (isCounted(t)) activeCount++;
+  const step = Math.max(1, activeCount / maxTerms);
   // Plain ASCII terms are tokenised from the release's bytes (text/asciiTokens.ts); the stems of
   // their non-stop tokens are the lexical key's (df counts each stem once per term, so the key's
   // sorting does not matter). A term of stop words only, and any other term, goes through lexicalKey.
@@ -93,8 +92,13 @@ export function releaseDocumentFrequencies(r: Release, maxTerms = 100_000): Docu
     return stemIds.length - 1;
   });
   const stems: string[] = [];
-  for (let i = 0; i < active.length; i += step) {
-    const t = active[Math.floor(i)];
+  // The active terms at positions 0, step, 2 step … (floored) among the active terms, found in
+  // a second pass instead of a list of all of them (4 M numbers at 4 M rows).
+  let t = -1;
+  let seen = -1;
+  for (let i = 0; i < activeCount; i += step) {
+    const want = Math.floor(i);
+    while (seen < want) if (isCounted(++t)) seen++;
     if (raw) {
       const n = ascii.tokens(raw.blocks[raw.termBlock[t]], raw.textStart[t], raw.textEnd[t]);
       if (n === 0) {

@@ -26,7 +26,7 @@ import { conceptIndexOf, termTextAt } from '../load/releaseBytes.js';
 import type { DiffContext } from '../classify/context.js';
 import { categoryName, isActive, resolveHistory } from '../classify/context.js';
 import { conceptLabel } from '../classify/detector.js';
-import { foldTerm } from '../text/normalize.js';
+import { foldTerm, lexicalKeyOfFolded } from '../text/normalize.js';
 import { trigramDice } from '../text/similarity.js';
 import type { Change, ChangeOf } from '../classify/types.js';
 import type { IndexHit } from './conceptIndex.js';
@@ -226,8 +226,8 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   for (const node of ctx.news.values()) {
     if (!node.active) continue;
     for (const t of node.terms) {
-      const f = textForms(termTextAt(newR, t));
-      for (const key of [`f${f.folded}`, `l${f.lexical}`]) {
+      const folded = foldTerm(termTextAt(newR, t));
+      for (const key of [`f${folded}`, `l${lexicalKeyOfFolded(folded)}`]) {
         const list = frontierText.get(key);
         if (!list) frontierText.set(key, [node.n]);
         else if (!list.includes(node.n)) list.push(node.n);

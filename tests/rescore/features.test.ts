@@ -5,6 +5,7 @@ import {
   releaseDocumentFrequencies, textForms,
 } from '../../src/rescore/features.js';
 import type { Hierarchy } from '../../src/load/types.js';
+import { ACTIVE } from '../../src/load/types.js';
 
 const SPEC = `
 A disorder: Heart attack* | Myocardial infarction | MI
@@ -132,6 +133,37 @@ describe('context features', () => {
 });
 
 describe('document frequencies from the release bytes', () => {
+  it('sample the active terms at positions 0, step, 2 step … (floored), skipping inactive ones, for any step', async () => {
+    const spec = `
+A disorder: Heart attack* | Attacks of the heart | Cardiac arrest
+B disorder (inactive): Old fracture* | Former break
+C disorder: Fracture of femur* | Femoral fracture | Broken thigh bone
+D finding: Skin rash* | Eruption
+E disorder (inactive): Retired item*
+F finding: Itching* | Pruritus | Itch of skin
+`;
+    const r = (await loadPair({ old: spec, new: spec })).old;
+    const { lexicalKey } = await import('../../src/text/normalize.js');
+    const { DocumentFrequencies } = await import('../../src/text/tfidf.js');
+    // The reference: the list of every counted term, indexed at floor(i) for i = 0, step, …
+    const active: number[] = [];
+    for (let t = 0; t < r.termCount; t++) if (r.termStatus[t] === ACTIVE && r.conceptStatus[r.termConcept[t]] === ACTIVE) active.push(t);
+    expect(active.length).toBe(11);
+    for (const maxTerms of [1, 2, 3, 4, 5, 7, 10, 11, 50]) {
+      const expected = new DocumentFrequencies();
+      const step = Math.max(1, active.length / maxTerms);
+      for (let i = 0; i < active.length; i += step) {
+        const key = lexicalKey(r.termText[active[Math.floor(i)]]);
+        expected.add(key === '' ? [] : key.split(' '));
+      }
+      const got = releaseDocumentFrequencies(r, maxTerms);
+      expect([maxTerms, got.count, got.vocabularySize]).toEqual([maxTerms, expected.count, expected.vocabularySize]);
+      for (const stem of ['heart', 'attack', 'cardiac', 'fractur', 'femur', 'broken', 'rash', 'erupt', 'itch', 'pruritu', 'skin', 'old']) {
+        expect([maxTerms, stem, got.frequency(stem)]).toEqual([maxTerms, stem, expected.frequency(stem)]);
+      }
+    }
+  });
+
   it('count the same stems as the lexical keys of every sampled term (plain, punctuated, other scripts, stop words only)', async () => {
     const spec = `
 A disorder: Heart attack* | Attacks of the heart | heart, attack (acute) | The
