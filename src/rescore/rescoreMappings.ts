@@ -122,6 +122,8 @@ interface Candidate {
   n: number;
   reason: Reason;
   score: number;
+  /** The ranking key (score, plus TIE_MARGIN when the concept holds the label's folded form), set by ranked() once. */
+  key?: number;
 }
 
 const round3 = (x: number) => Math.round(x * 1000) / 1000;
@@ -295,6 +297,10 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
    * when the target's ancestry is the same in both hierarchies (then the weighted Jaccard is 1,
    * or both sets are empty), which holds for most mappings.
    */
+  // A mapping asks for its target twice in a row (old release, then new): the last answer is kept.
+  let hasId: string | undefined;
+  let has = false;
+  const hasAncestors = (id: string) => (id === hasId ? has : ((hasId = id), (has = oldAnc!.hasAncestors(id))));
   const selfScore = (lex: Float64Array, cOld: number, cNew?: number): number => {
     x.set(lex);
     const category = conceptContext(oldR, cOld).category;
@@ -303,7 +309,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     if (oldAnc && anc) {
       const id = oldR.conceptIds[cOld];
       let s = -1;
-      if (anc === oldAnc || oldAnc.sameAncestors(anc, id)) s = oldAnc.hasAncestors(id) ? 1 : -1;
+      if (anc === oldAnc || oldAnc.sameAncestors(anc, id)) s = hasAncestors(id) ? 1 : -1;
       else {
         const a = oldAnc.ancestors(id);
         const b = anc.ancestors(id);
@@ -500,9 +506,11 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
      * where the exact wording is the better evidence.
      */
     const ranked = (): Candidate[] => {
-      for (const cand of candidates.values()) if (cand.score < 0) cand.score = scoreNew(label, cand.n, targetCtx());
-      const key = (c: Candidate) => c.score + (holdsLabel(c.n) ? TIE_MARGIN : 0);
-      return [...candidates.values()].sort((a, b) => key(b) - key(a) || b.score - a.score || (newR.conceptIds[a.n] < newR.conceptIds[b.n] ? -1 : 1));
+      for (const cand of candidates.values()) {
+        if (cand.score < 0) cand.score = scoreNew(label, cand.n, targetCtx());
+        cand.key ??= cand.score + (holdsLabel(cand.n) ? TIE_MARGIN : 0);
+      }
+      return [...candidates.values()].sort((a, b) => b.key! - a.key! || b.score - a.score || (newR.conceptIds[a.n] < newR.conceptIds[b.n] ? -1 : 1));
     };
     const holdsLabel = (n: number) => foldedTermsOf(n).includes(label.folded);
     const describe = (c: Candidate) => `${newR.conceptIds[c.n]} ${quote(newLabel(c.n))} (${round3(c.score)})`;
