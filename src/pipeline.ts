@@ -52,9 +52,12 @@ export interface DiffInputs {
 export async function loadDiffInputs(o: DiffOptions): Promise<DiffInputs> {
   const onProgress = (path: string) => (o.onProgress ? (read: number, size: number) => o.onProgress!(path, read, size) : undefined);
   const [oldR, newR, oh, nh, hist] = await Promise.all([
-    // The old release in a worker thread when it is large (load/releaseThread.ts): two cores read the two files.
-    loadReleaseInThread(o.old, { label: o.oldLabel, columns: o.columns, order: 'canonical', onProgress: onProgress(o.old) }),
-    loadRelease(o.new, { label: o.newLabel, columns: o.columns, order: 'canonical', onProgress: onProgress(o.new) }),
+    loadRelease(o.old, { label: o.oldLabel, columns: o.columns, order: 'canonical', onProgress: onProgress(o.old) }),
+    // The new release in a worker thread when it is large (load/releaseThread.ts): two cores read
+    // the two files. That worker then builds the new release's nearest-concept index, which the
+    // diff needs late (successors of retired concepts), while the old release is still being read
+    // and the terms are aligned (rescore/indexThread.ts).
+    loadReleaseInThread(o.new, { label: o.newLabel, columns: o.columns, order: 'canonical', onProgress: onProgress(o.new) }, undefined, true),
     // Canonical order (load/canonicalOrder.ts): the report does not depend on the row order.
     o.oldHierarchy ? loadHierarchyInThread(o.oldHierarchy, { onProgress: onProgress(o.oldHierarchy) }).then(canonicalHierarchy) : undefined,
     o.newHierarchy ? loadHierarchy(o.newHierarchy, { onProgress: onProgress(o.newHierarchy) }).then(canonicalHierarchy) : undefined,

@@ -22,7 +22,7 @@ import type { Alignment } from '../align/types.js';
 import { foldTerm, lexicalKey } from '../text/normalize.js';
 import { levenshteinSimilarity, tokenJaccard } from '../text/similarity.js';
 import type { ConceptIndex, IndexHit } from '../rescore/conceptIndex.js';
-import { startConceptIndex, type SearchQuery } from '../rescore/indexThread.js';
+import { startConceptIndex, takeConceptIndex, type SearchQuery } from '../rescore/indexThread.js';
 import { DEFAULT_THRESHOLDS, type Thresholds } from './thresholds.js';
 import type { FlowCell, HistoryEvidence } from './types.js';
 
@@ -182,8 +182,9 @@ export function buildContext(input: DiffInput): DiffContext {
   const thresholds = { ...DEFAULT_THRESHOLDS, ...input.thresholds };
   const oldR = input.old;
   const newR = input.new;
-  // Started first, so that on a second core it is built while the terms are aligned (rescore/indexThread.ts).
-  const index = startConceptIndex(newR);
+  // Being built already by the worker that loaded the new release (pipeline.ts), or started
+  // first, so that on a second core it is built while the terms are aligned (rescore/indexThread.ts).
+  const index = takeConceptIndex(newR) ?? startConceptIndex(newR);
   const align = alignTerms(oldR, newR);
   const olds = new Map<number, OldNode>();
   const news = new Map<number, NewNode>();

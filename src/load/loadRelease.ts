@@ -37,6 +37,8 @@ export interface LoadReleaseOptions {
   blockSize?: number;
   /** Bytes per read of the byte reader. */
   readSize?: number;
+  /** Files of at least this many bytes are hashed in a worker thread, their blocks in shared memory (default 64 MiB; tests use 0). */
+  hashInThreadFrom?: number;
   /**
    * `file` (default): concepts and terms numbered in first-seen order; `canonical`: renumbered
    * after the row checks so that the order of the file's rows does not matter (canonicalOrder.ts;
@@ -58,7 +60,7 @@ export async function loadRelease(path: string, options: LoadReleaseOptions = {}
   const builder = new ReleaseBuilder(path, ledger, options.columns, blocks);
   const info = options.reader === 'strings' || delimiterFromName(path) === ','
     ? await readTable(path, ledger, builder, { onProgress: options.onProgress })
-    : await readTsvBytes(path, ledger, builder, { blocks, blockSize: options.blockSize, readSize: options.readSize, onProgress: options.onProgress });
+    : await readTsvBytes(path, ledger, builder, { blocks, blockSize: options.blockSize, readSize: options.readSize, hashInThreadFrom: options.hashInThreadFrom, onProgress: options.onProgress });
   const b = builder.finish();
   const bytes = new ReleaseBytes({
     blocks, termBlock: b.termBlock, textStart: b.textStart, textEnd: b.textEnd, idStart: b.idStart, idEnd: b.idEnd,

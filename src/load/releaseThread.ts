@@ -14,7 +14,9 @@
  */
 import { existsSync, statSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
-import { Worker } from 'node:worker_threads';
+import { MessageChannel, Worker, type TransferListItem } from 'node:worker_threads';
+import { adoptConceptIndex, INDEX_STALL_SECONDS, type IndexAnswer } from '../rescore/indexThread.js';
+import { WorkerAnswers, answerState } from '../rescore/workerAnswers.js';
 import { loadRelease, type LoadReleaseOptions } from './loadRelease.js';
 import { loadHierarchy } from './loadHierarchy.js';
 import type { ColumnRenames } from './columns.js';
@@ -84,22 +86,29 @@ function workerScript(): URL | undefined {
   return existsSync(fileURLToPath(url)) ? url : undefined;
 }
 
+/** What a worker answers for one file: the result (undefined when it could not), and whether it goes on indexing it. */
+interface WorkerResult<T> {
+  result: T | undefined;
+  indexing: boolean;
+  worker?: Worker;
+}
+
 /** Run the worker on one file; its answer, or undefined when it could not answer. */
-function inWorker<T>(script: URL, job: { kind: 'release' | 'hierarchy'; path: string; options: object }, onProgress: ProgressCallback | undefined): Promise<T | undefined> {
-  return new Promise<T | undefined>((resolve) => {
+function inWorker<T>(script: URL, job: { kind: 'release' | 'hierarchy'; path: string; options: object; index?: object }, onProgress: ProgressCallback | undefined, transferList: TransferListItem[] = []): Promise<WorkerResult<T>> {
+  return new Promise<WorkerResult<T>>((resolve) => {
     let worker: Worker;
     try {
-      worker = new Worker(script, { workerData: { ...job, progress: onProgress !== undefined } });
+      worker = new Worker(script, { workerData: { ...job, progress: onProgress !== undefined }, transferList });
     } catch {
-      resolve(undefined);
+      resolve({ result: undefined, indexing: false });
       return;
     }
-    worker.on('message', (m: { progress?: [number, number]; result?: T; error?: string }) => {
+    worker.on('message', (m: { progress?: [number, number]; result?: T; indexing?: boolean; error?: string }) => {
       if (m.progress) onProgress?.(m.progress[0], m.progress[1]);
-      else resolve(m.result);
+      else resolve({ result: m.result, indexing: m.indexing === true, worker });
     });
-    worker.on('error', () => resolve(undefined));
-    worker.on('exit', () => resolve(undefined));
+    worker.on('error', () => resolve({ result: undefined, indexing: false }));
+    worker.on('exit', () => resolve({ result: undefined, indexing: false }));
   });
 }
 
@@ -119,14 +128,30 @@ function threadScript(path: string, thread: boolean | undefined): URL | undefine
  * loadRelease, in a worker thread when the file is large enough to gain from it (`thread`: true
  * always when a worker can be started, false never; default: from THREAD_FROM_BYTES).
  */
-export async function loadReleaseInThread(path: string, options: LoadReleaseOptions = {}, thread?: boolean): Promise<Release> {
+export async function loadReleaseInThread(path: string, options: LoadReleaseOptions = {}, thread?: boolean, index = false): Promise<Release> {
   const script = threadScript(path, thread);
   if (script === undefined) return loadRelease(path, options);
   const { onProgress, ...rest } = options;
-  const posted = await inWorker<PostedRelease>(script, { kind: 'release', path, options: rest }, onProgress);
-  if (posted === undefined) return loadRelease(path, options);
+  // `index`: the worker goes on to build the release's nearest-concept index (rescore/indexServer.ts)
+  // and answers on this channel; the next diff of the release takes it (rescore/indexThread.ts).
+  const channel = index ? new MessageChannel() : undefined;
+  const state = index ? answerState() : undefined;
+  const job = { kind: 'release' as const, path, options: rest, ...(channel ? { index: { state, port: channel.port2 } } : {}) };
+  const answer = await inWorker<PostedRelease>(script, job, onProgress, channel ? [channel.port2] : []);
+  const posted = answer.result;
+  if (posted === undefined) {
+    channel?.port1.close();
+    return loadRelease(path, options);
+  }
   threadStats.received++;
-  return receiveRelease(posted);
+  const release = receiveRelease(posted);
+  const worker = answer.worker!;
+  if (channel && state && answer.indexing) {
+    // The worker stays to answer; it must not keep the process alive.
+    worker.unref();
+    adoptConceptIndex(release, new WorkerAnswers<IndexAnswer>(state, channel.port1, INDEX_STALL_SECONDS, () => void worker.terminate()), channel.port1);
+  } else channel?.port1.close();
+  return release;
 }
 
 /**
@@ -138,7 +163,7 @@ export async function loadHierarchyInThread(path: string, options: { columns?: C
   const script = threadScript(path, thread);
   if (script === undefined) return loadHierarchy(path, options);
   const { onProgress, ...rest } = options;
-  const h = await inWorker<Hierarchy>(script, { kind: 'hierarchy', path, options: rest }, onProgress);
+  const h = (await inWorker<Hierarchy>(script, { kind: 'hierarchy', path, options: rest }, onProgress)).result;
   if (h === undefined) return loadHierarchy(path, options);
   threadStats.received++;
   return h;

@@ -23,7 +23,8 @@ import { existsSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import type { Release } from '../load/types.js';
 import { ConceptIndex, indexSource, type ConceptIndexOptions, type IndexHit, type IndexParts } from './conceptIndex.js';
-import { startAnswering } from './workerAnswers.js';
+import { startAnswering, type WorkerAnswers } from './workerAnswers.js';
+import type { MessagePort } from 'node:worker_threads';
 
 /** One nearest-concept search: the texts of a concept, as ConceptIndex.search takes them. */
 export interface SearchQuery {
@@ -50,6 +51,8 @@ export interface IndexHandle {
 export const THREAD_FROM_TERMS = 100_000;
 /** Seconds without a heartbeat from the worker after which the main thread builds the index itself. */
 const STALL_SECONDS = 30;
+/** The same, for an index built by the worker that loaded the release (load/releaseThread.ts). */
+export const INDEX_STALL_SECONDS = STALL_SECONDS;
 
 /** Indexes built by a worker so far (tests check that the thread was used, not the fallback). */
 export const threadStats = { received: 0, searchedThere: 0 };
@@ -94,7 +97,39 @@ export function startConceptIndex(release: Release, options: IndexThreadOptions 
     blocks: bytes.blocks, termBlock: bytes.termBlock, textStart: bytes.textStart, textEnd: bytes.textEnd,
   }, [src.active.buffer as ArrayBuffer], STALL_SECONDS);
   if (!started) return local;
-  const { answers, port } = started;
+  return indexHandle(release, indexOptions, started.answers, started.port);
+}
+
+/** Indexes being built for a release by the worker that loaded it (adoptConceptIndex), until a diff takes them. */
+const adopted = new WeakMap<Release, IndexHandle>();
+
+/**
+ * The index of `release` is being built by a worker already (the one that loaded it:
+ * load/releaseThread.ts), which answers on `port` as indexServer.ts does: the next diff of the
+ * release takes it (takeConceptIndex) instead of starting its own.
+ */
+export function adoptConceptIndex(release: Release, answers: WorkerAnswers<IndexAnswer>, port: MessagePort): void {
+  adopted.set(release, indexHandle(release, {}, answers, port));
+}
+
+/** The index adopted for `release`, once (a later diff starts its own), else undefined. */
+export function takeConceptIndex(release: Release): IndexHandle | undefined {
+  const handle = adopted.get(release);
+  adopted.delete(release);
+  return handle;
+}
+
+/** The handle over a worker that builds (or built) the index of `release` and answers on `port`. */
+function indexHandle(release: Release, indexOptions: ConceptIndexOptions, answers: WorkerAnswers<IndexAnswer>, port: MessagePort): IndexHandle {
+  let index: ConceptIndex | undefined;
+  const here = () => (index ??= new ConceptIndex(release, indexOptions));
+  const local: IndexHandle = {
+    get: here,
+    searchAhead: (queries) => {
+      let hits: IndexHit[][] | undefined;
+      return () => (hits ??= runHere(here, queries));
+    },
+  };
   const next = () => answers.next();
   const stop = () => answers.stop();
   let built: boolean | undefined;

@@ -12,6 +12,8 @@ const { loadRelease } = (await import(`${dist}load/index.js`)) as typeof import(
 const { ConceptIndex } = (await import(`${dist}rescore/conceptIndex.js`)) as typeof import('../../src/rescore/conceptIndex.js');
 const { startConceptIndex, threadStats } = (await import(`${dist}rescore/indexThread.js`)) as typeof import('../../src/rescore/indexThread.js');
 const { termTextAt } = (await import(`${dist}load/releaseBytes.js`)) as typeof import('../../src/load/releaseBytes.js');
+const { loadReleaseInThread } = (await import(`${dist}load/releaseThread.js`)) as typeof import('../../src/load/releaseThread.js');
+const { takeConceptIndex } = (await import(`${dist}rescore/indexThread.js`)) as typeof import('../../src/rescore/indexThread.js');
 
 describe('startConceptIndex', () => {
   it('the index from the worker thread answers as the one built here', async () => {
@@ -62,4 +64,44 @@ describe('startConceptIndex', () => {
     expect(handle.get().search([termTextAt(r, 0)], 1)[0].score).toBe(1);
     expect(handle.searchAhead([{ texts: [termTextAt(r, 0)], limit: 1, skipConcept: -1 }])()[0][0].score).toBe(1);
   });
+});
+
+describe('an index built by the worker that loaded the release', () => {
+  it('answers as the one built here, is taken once, and moves here on get()', async () => {
+    const dir = tempDir();
+    const { paths } = await writeDataset(dir, generateDataset({ concepts: 1500, seed: 9 }));
+    // hashInThreadFrom 0: the blocks in shared memory, as for a large file.
+    const newR = await loadReleaseInThread(paths.new, { order: 'canonical', hashInThreadFrom: 0 }, true, true);
+    const same = await loadRelease(paths.new, { order: 'canonical' });
+    expect(newR.termCount).toBe(same.termCount);
+    const here = new ConceptIndex(same);
+    const handle = takeConceptIndex(newR);
+    expect(handle).toBeDefined();
+    expect(takeConceptIndex(newR)).toBeUndefined();
+    const queries: { texts: string[]; limit: number; skipConcept: number }[] = [];
+    for (let c = 0; c < same.conceptCount; c += 5) {
+      const texts: string[] = [];
+      for (let k = same.conceptTermStart[c]; k < same.conceptTermStart[c + 1]; k++) texts.push(termTextAt(same, same.conceptTerms[k]));
+      queries.push({ texts, limit: 10, skipConcept: c }, { texts: texts.map((s) => s.replace(/[aeiou]/, 'x')), limit: 10, skipConcept: -1 });
+    }
+    const expected = queries.map((q) => here.search(q.texts, q.limit, q.skipConcept));
+    const searched = threadStats.searchedThere;
+    const received = threadStats.received;
+    expect(handle!.searchAhead(queries)()).toEqual(expected);
+    expect(threadStats.searchedThere).toBe(searched + queries.length);
+    const moved = handle!.get();
+    expect(threadStats.received).toBe(received + 1);
+    expect(queries.map((q) => moved.search(q.texts, q.limit, q.skipConcept))).toEqual(expected);
+  }, 60_000);
+
+  it('copies small unshared blocks before they are moved, and answers from them', async () => {
+    const dir = tempDir();
+    const { paths } = await writeDataset(dir, generateDataset({ concepts: 300, seed: 4 }));
+    const r = await loadReleaseInThread(paths.new, { order: 'canonical' }, true, true);
+    const same = await loadRelease(paths.new, { order: 'canonical' });
+    const handle = takeConceptIndex(r);
+    expect(handle).toBeDefined();
+    const texts = [termTextAt(same, 0), termTextAt(same, 5)];
+    expect(handle!.searchAhead([{ texts, limit: 5, skipConcept: -1 }])()).toEqual([new ConceptIndex(same).search(texts, 5, -1)]);
+  }, 60_000);
 });
