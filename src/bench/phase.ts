@@ -9,11 +9,12 @@
  *  check OLD NEW OH NH H M the whole check (diff, then every mapping re-scored)
  *  sqlite OLD NEW         SQLite (better-sqlite3) importing both tables and joining them on the term
  */
-import { createReadStream } from 'node:fs';
+import { createReadStream, statSync } from 'node:fs';
 import { StringDecoder } from 'node:string_decoder';
 import { performance } from 'node:perf_hooks';
 import { loadRelease } from '../load/index.js';
 import { runDiff } from '../pipeline.js';
+import { SMALL_INPUTS, tuneCollector } from '../cli/heap.js';
 
 async function bareSplit(path: string): Promise<number> {
   const decoder = new StringDecoder('utf8');
@@ -68,6 +69,8 @@ async function sqliteJoin(oldPath: string, newPath: string): Promise<unknown> {
 
 async function main() {
   const [phase, ...args] = process.argv.slice(2);
+  // As the CLI does before reading inputs of this size (cli/heap.ts, guardMemory).
+  if ((phase === 'diff' || phase === 'check') && args.reduce((n, p) => n + statSync(p).size, 0) >= SMALL_INPUTS) tuneCollector();
   const t0 = performance.now();
   let result: unknown;
   switch (phase) {

@@ -9,7 +9,7 @@ import { statSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { Writable } from 'node:stream';
 import { gzipSync } from 'node:zlib';
-import { BASE_COST, estimateFile, estimateMemory, HEAP_MARGIN, inputFilesOf, MEMORY_SHARE, planHeap, ROW_COST, SMALL_INPUTS } from '../../src/cli/heap.js';
+import { BASE_COST, estimateFile, estimateMemory, HEAP_GROWING_PERCENT, HEAP_MARGIN, inputFilesOf, MEMORY_SHARE, planHeap, ROW_COST, SMALL_INPUTS, tuneCollector } from '../../src/cli/heap.js';
 import { createProgress, SILENT } from '../../src/cli/progress.js';
 import { loadHierarchy, loadMappings, loadRelease } from '../../src/load/index.js';
 import { tempDir } from '../helpers/files.js';
@@ -119,6 +119,16 @@ describe('planHeap', () => {
 
   it('adds the base cost to the inputs', () => {
     expect(estimateMemory([]).heap).toBe(BASE_COST.heap);
+  });
+});
+
+describe('tuneCollector', () => {
+  it('sets V8\'s heap growing factor once per process, whatever the later calls', () => {
+    const flags: string[] = [];
+    expect(tuneCollector((f) => flags.push(f))).toBe(true);
+    expect(tuneCollector((f) => flags.push(f))).toBe(false);
+    expect(flags).toEqual([`--heap-growing-percent=${HEAP_GROWING_PERCENT}`]);
+    expect(HEAP_GROWING_PERCENT).toBeGreaterThan(0);
   });
 });
 
