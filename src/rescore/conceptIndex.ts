@@ -156,24 +156,27 @@ export function buildIndexParts(src: IndexSource, onProgress?: (terms: number) =
   const ascii = new AsciiTokens(wordOfToken);
   const raw = src.bytes;
   const termCount = src.termCount;
+  // The words of term t are pw[termStart[t] .. termStart[t+1]): the pairs are made term by term,
+  // so they are the forward index (term → words) as they stand, and the term of a pair is known
+  // from termStart without a second list.
   const pw = new GrowableInt32(1 << 16);
-  const pt = new GrowableInt32(1 << 16);
+  const termStart = new Int32Array(termCount + 1);
   let active = 0;
-  const push = (w: number, t: number, first: number) => {
+  const push = (w: number, first: number) => {
     for (let k = first; k < pw.length; k++) if (pw.data[k] === w) return;
     pw.push(w);
-    pt.push(t);
   };
   for (let t = 0; t < termCount; t++) {
     if (onProgress !== undefined && (t & 0xffff) === 0) onProgress(t);
+    const first = pw.length;
+    termStart[t] = first;
     if (src.active[t] === 0) continue;
     active++;
-    const first = pw.length;
     if (raw) {
       const n = ascii.tokens(raw.blocks[raw.termBlock[t]], raw.textStart[t], raw.textEnd[t]);
       if (n === 0) continue; // spaces only: folds to ''
       if (n > 0) {
-        for (let k = 0; k < n; k++) if (ascii.out[k] >= 0) push(ascii.out[k], t, first);
+        for (let k = 0; k < n; k++) if (ascii.out[k] >= 0) push(ascii.out[k], first);
         if (pw.length > first) continue;
         // Stop words only: the folded text is the key, as below.
       }
@@ -182,32 +185,32 @@ export function buildIndexParts(src: IndexSource, onProgress?: (terms: number) =
     if (folded === '') continue;
     for (const token of folded.split(' ')) {
       const w = wordOfToken(token);
-      if (w >= 0) push(w, t, first);
+      if (w >= 0) push(w, first);
     }
-    if (pw.length === first) { pw.push(wordId(folded)); pt.push(t); }
+    if (pw.length === first) pw.push(wordId(folded));
   }
-  const pairWord = pw.data;
-  const pairTerm = pt.data;
   const pairs = pw.length;
-  // Pass 2: compressed sparse rows.
+  termStart[termCount] = pairs;
+  const termWords = pw.finish();
+  // Pass 2: postings (word → terms) as compressed sparse rows, terms ascending within a word.
   const nWords = words.length;
   const start = new Int32Array(nWords + 1);
-  for (let k = 0; k < pairs; k++) start[pairWord[k] + 1]++;
+  for (let k = 0; k < pairs; k++) start[termWords[k] + 1]++;
   for (let w = 0; w < nWords; w++) start[w + 1] += start[w];
   const fill = start.slice(0, nWords);
   const terms = new Int32Array(pairs);
-  for (let k = 0; k < pairs; k++) terms[fill[pairWord[k]]++] = pairTerm[k];
   const idfs = new Float64Array(nWords);
   for (let w = 0; w < nWords; w++) idfs[w] = Math.log((active + 1) / (start[w + 1] - start[w] + 1)) + 1;
   const termNorm = new Float64Array(termCount);
-  for (let k = 0; k < pairs; k++) termNorm[pairTerm[k]] += idfs[pairWord[k]];
-  // Forward index term → words, to score candidates on common words without scanning their postings.
-  const termStart = new Int32Array(termCount + 1);
-  for (let k = 0; k < pairs; k++) termStart[pairTerm[k] + 1]++;
-  for (let t = 0; t < termCount; t++) termStart[t + 1] += termStart[t];
-  const tFill = termStart.slice(0, termCount);
-  const termWords = new Int32Array(pairs);
-  for (let k = 0; k < pairs; k++) termWords[tFill[pairTerm[k]]++] = pairWord[k];
+  for (let t = 0; t < termCount; t++) {
+    let norm = 0;
+    for (let k = termStart[t]; k < termStart[t + 1]; k++) {
+      const w = termWords[k];
+      terms[fill[w]++] = t;
+      norm += idfs[w];
+    }
+    termNorm[t] = norm;
+  }
   return { words, start, terms, idfs, termNorm, termStart, termWords };
 }
 
