@@ -2,11 +2,10 @@
  * The detector interface and helpers shared by the detectors in detectors/.
  * A detector reads the DiffContext and returns the changes of one kind.
  */
-import type { Release } from '../load/types.js';
+import { ACTIVE, type Release } from '../load/types.js';
 import type { Change, ChangeKind, ChangeOf, Successor, TermMove } from './types.js';
 import type { DiffContext, OldNode } from './context.js';
 import { round, isActive } from './context.js';
-import { activeTerms } from '../align/alignTerms.js';
 import { conceptIndexOf, termTextAt } from '../load/releaseBytes.js';
 
 export interface Detector<K extends ChangeKind = ChangeKind> {
@@ -27,11 +26,18 @@ export function makeChange<K extends ChangeKind>(kind: K, from: string[], to: st
 
 /** The preferred term of concept c (first preferred active term, else first term), or ''. */
 export function conceptLabel(r: Release, c: number): string {
-  const terms = activeTerms(r, c);
-  for (const t of terms) if (r.termType[t] === 0) return termTextAt(r, t);
-  if (terms.length) return termTextAt(r, terms[0]);
+  // One pass over the concept's terms, no list (re-scoring asks this for every mapping).
   const s = r.conceptTermStart[c];
-  return s < r.conceptTermStart[c + 1] ? termTextAt(r, r.conceptTerms[s]) : '';
+  const e = r.conceptTermStart[c + 1];
+  let firstActive = -1;
+  for (let k = s; k < e; k++) {
+    const t = r.conceptTerms[k];
+    if (r.termStatus[t] !== ACTIVE) continue;
+    if (r.termType[t] === 0) return termTextAt(r, t);
+    if (firstActive < 0) firstActive = t;
+  }
+  if (firstActive >= 0) return termTextAt(r, firstActive);
+  return s < e ? termTextAt(r, r.conceptTerms[s]) : '';
 }
 
 /** Term moves for old terms of `o` that went to new concept n (or anywhere, when n is -1). */
