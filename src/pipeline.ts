@@ -38,6 +38,8 @@ export interface DiffOptions {
   now?: string;
   /** Told the bytes read of each input file as it loads (the CLI's progress bar). */
   onProgress?: (path: string, bytesRead: number, fileSize: number) => void;
+  /** Called once every input is read, before the diff (the CLI tunes the collector there: cli/heap.ts, afterInputsRead). */
+  onLoaded?: () => void;
 }
 
 export interface DiffInputs {
@@ -108,6 +110,7 @@ export function diffReleases(inputs: DiffInputs, options: { thresholds?: Partial
 /** Load and diff. */
 export async function runDiff(options: DiffOptions): Promise<{ report: DiffReport; context: DiffContext; inputs: DiffInputs }> {
   const inputs = await loadDiffInputs(options);
+  options.onLoaded?.();
   const { report, context } = diffReleases(inputs, options);
   return { report, context, inputs };
 }
@@ -161,6 +164,7 @@ export function checkReleases(inputs: DiffInputs, mappings: MappingSet, options:
 /** Load, diff and re-score. */
 export async function runCheck(options: CheckOptions): Promise<{ report: CheckReport; context: DiffContext; inputs: DiffInputs; mappings: MappingSet }> {
   const [inputs, mappings] = await Promise.all([loadDiffInputs(options), loadMappings(options.mappings, { onProgress: options.onProgress && ((r, s) => options.onProgress!(options.mappings, r, s)) })]);
+  options.onLoaded?.();
   const store = options.state !== undefined ? StateStore.open(options.state) : undefined;
   const { report, context } = checkReleases(inputs, mappings, { ...options, decisions: store?.decisions() });
   if (store) {

@@ -69,8 +69,8 @@ async function sqliteJoin(oldPath: string, newPath: string): Promise<unknown> {
 
 async function main() {
   const [phase, ...args] = process.argv.slice(2);
-  // As the CLI does before reading inputs of this size (cli/heap.ts, guardMemory).
-  if ((phase === 'diff' || phase === 'check') && args.reduce((n, p) => n + statSync(p).size, 0) >= SMALL_INPUTS) tuneCollector();
+  // As the CLI does once it has read inputs of this size (cli/heap.ts, afterInputsRead).
+  const onLoaded = (phase === 'diff' || phase === 'check') && args.reduce((n, p) => n + statSync(p).size, 0) >= SMALL_INPUTS ? () => void tuneCollector() : undefined;
   const t0 = performance.now();
   let result: unknown;
   switch (phase) {
@@ -84,7 +84,7 @@ async function main() {
     }
     case 'diff': {
       const [o, n, oh, nh, h] = args;
-      const { report } = await runDiff({ old: o, new: n, oldHierarchy: oh, newHierarchy: nh, history: h });
+      const { report } = await runDiff({ old: o, new: n, oldHierarchy: oh, newHierarchy: nh, history: h, onLoaded });
       result = report.summary;
       break;
     }
@@ -97,6 +97,7 @@ async function main() {
       const { rescoreMappings } = await import('../rescore/rescoreMappings.js');
       const { rankByImpact } = await import('../rank/rankByImpact.js');
       const [inputs, mappings] = await Promise.all([loadDiffInputs({ old: o, new: n, oldHierarchy: oh, newHierarchy: nh, history: h }), loadMappings(m)]);
+      onLoaded?.();
       const t1 = performance.now();
       const { report, context } = diffReleases(inputs);
       const t2 = performance.now();

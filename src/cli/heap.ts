@@ -202,25 +202,34 @@ export function planHeap(e: MemoryEstimate, limits: { heapLimit: number; physica
  * grow by this share before its next full collection). Left to itself V8 picks the factor from
  * how little time collection took, up to a factor of 4 here: during re-scoring the heap went from
  * 441 MB after one full collection to 1,374 MB with no other, garbage included, which made most of
- * `check`'s peak. At 30 the collector runs about ten more full collections in a 4 M-row `check`
- * (0.5 s of pauses) and the peak fell from 3.12–3.16 GB to 2.81–2.85 GB, with no measurable
- * change in time (docs/BENCHMARKS.md, seventh run).
+ * `check`'s peak. With 30 % from the moment the inputs are read, a 4 M-row `check`'s peak fell
+ * from 3.17–3.18 GB to 2.89–2.90 GB (docs/BENCHMARKS.md, sixth run). Set from the start instead,
+ * it gave the same peak but about ten more full collections while loading, which took 1–3 s
+ * longer; set only before re-scoring, it came too late (the limit in force was already set).
  */
 export const HEAP_GROWING_PERCENT = 30;
 
 let collectorTuned = false;
+let bigRun = false;
 
 /**
  * Set the heap growing factor for this process (once; later calls do nothing). Returns whether it
  * was set by this call. A V8 flag set at run time: it holds for the collections after it and for
- * worker threads started later. The CLI calls it for inputs of SMALL_INPUTS or more, before
- * reading them; the benchmark's diff and check phases do the same.
+ * worker threads started later.
  */
 export function tuneCollector(set: (flags: string) => void = setFlagsFromString): boolean {
   if (collectorTuned) return false;
   set(`--heap-growing-percent=${HEAP_GROWING_PERCENT}`);
   collectorTuned = true;
   return true;
+}
+
+/**
+ * The CLI's `onLoaded` (pipeline.ts): tune the collector when guardMemory let a run on inputs of
+ * SMALL_INPUTS or more go ahead (the re-run with a larger heap included). Returns whether it did.
+ */
+export function afterInputsRead(set?: (flags: string) => void): boolean {
+  return bigRun && tuneCollector(set);
 }
 
 /** Thrown when the command ran again in a child process; main() exits with `exitCode`. */
@@ -252,7 +261,7 @@ export function guardMemory(files: InputFile[], env: NodeJS.ProcessEnv = process
     reexeced: env.TERMDRIFT_HEAP_REEXEC === '1',
   });
   if (plan.action === 'run') {
-    tuneCollector();
+    bigRun = true;
     return;
   }
   if (plan.action === 'refuse') throw plan.error;

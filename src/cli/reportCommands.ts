@@ -15,6 +15,7 @@ import { parseFailOn } from '../rank/failOn.js';
 import { writeAtomic } from '../state/atomicWrite.js';
 import { DEFAULT_STATE_DIR } from '../state/stateStore.js';
 import type { Progress } from './progress.js';
+import { afterInputsRead } from './heap.js';
 
 export interface ReportFlags {
   oldHierarchy?: string;
@@ -100,7 +101,7 @@ function emit(text: string, f: ReportFlags, io: Io): void {
 
 export async function runDiffCommand(oldPath: string, newPath: string, f: ReportFlags, io: Io): Promise<ExitCode> {
   const format = parseFormat(f.format, DIFF_FORMATS);
-  const { report } = await runDiff({ ...diffOptions(oldPath, newPath, f), onProgress: io.progress?.file });
+  const { report } = await runDiff({ ...diffOptions(oldPath, newPath, f), onProgress: io.progress?.file, onLoaded: afterInputsRead });
   io.progress?.phase('writing the report');
   emit(renderReport(format, report, { color: useColor(f, io), limit: parseLimit(f.limit), verdicts: parseVerdicts(f.verdict) }), f, io);
   return exitCodeFor({});
@@ -113,7 +114,7 @@ export async function runCheckCommand(oldPath: string, newPath: string, f: Repor
   // check keeps its history in .termdrift/ unless told otherwise (docs/STATE.md).
   const state = f.state === false ? undefined : (f.state ?? DEFAULT_STATE_DIR);
   const options: CheckOptions = { ...diffOptions(oldPath, newPath, f), mappings: f.mappings, failOn, state };
-  const { report } = await runCheck({ ...options, onProgress: io.progress?.file });
+  const { report } = await runCheck({ ...options, onProgress: io.progress?.file, onLoaded: afterInputsRead });
   io.progress?.phase('writing the report');
   emit(renderReport(format, report, { color: useColor(f, io), limit: parseLimit(f.limit), verdicts: parseVerdicts(f.verdict) }), f, io);
   if (f.summaryJson) {

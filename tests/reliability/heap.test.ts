@@ -5,11 +5,11 @@
  * nothing unless standard error is a terminal and a phase has lasted a second).
  */
 import { describe, expect, it } from 'vitest';
-import { statSync, writeFileSync } from 'node:fs';
+import { statSync, truncateSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { Writable } from 'node:stream';
 import { gzipSync } from 'node:zlib';
-import { BASE_COST, estimateFile, estimateMemory, HEAP_GROWING_PERCENT, HEAP_MARGIN, inputFilesOf, MEMORY_SHARE, planHeap, ROW_COST, SMALL_INPUTS, tuneCollector } from '../../src/cli/heap.js';
+import { BASE_COST, estimateFile, estimateMemory, afterInputsRead, guardMemory, HEAP_GROWING_PERCENT, HEAP_MARGIN, inputFilesOf, MEMORY_SHARE, planHeap, ROW_COST, SMALL_INPUTS, tuneCollector } from '../../src/cli/heap.js';
 import { createProgress, SILENT } from '../../src/cli/progress.js';
 import { loadHierarchy, loadMappings, loadRelease } from '../../src/load/index.js';
 import { tempDir } from '../helpers/files.js';
@@ -123,10 +123,20 @@ describe('planHeap', () => {
 });
 
 describe('tuneCollector', () => {
-  it('sets V8\'s heap growing factor once per process, whatever the later calls', () => {
+  it('sets V8\'s heap growing factor once the inputs are read, only after guardMemory let a big run go ahead, and once per process', () => {
     const flags: string[] = [];
-    expect(tuneCollector((f) => flags.push(f))).toBe(true);
-    expect(tuneCollector((f) => flags.push(f))).toBe(false);
+    const set = (f: string) => void flags.push(f);
+    expect(afterInputsRead(set)).toBe(false); // no run on big inputs yet
+    expect(flags).toEqual([]);
+    // A history table of SMALL_INPUTS + 1 MiB: 200-byte lines at its head, the rest sparse.
+    const path = join(tempDir(), 'big-history.tsv');
+    const line = `old_id\tnew_id\trelation\t${'x'.repeat(200 - 24)}\n`;
+    writeFileSync(path, line.repeat(Math.ceil(2 * 65536 / line.length)));
+    truncateSync(path, SMALL_INPUTS + MIB);
+    guardMemory([{ path, role: 'history' }], {}); // about 350,000 rows: runs here
+    expect(afterInputsRead(set)).toBe(true);
+    expect(afterInputsRead(set)).toBe(false);
+    expect(tuneCollector(set)).toBe(false);
     expect(flags).toEqual([`--heap-growing-percent=${HEAP_GROWING_PERCENT}`]);
     expect(HEAP_GROWING_PERCENT).toBeGreaterThan(0);
   });
