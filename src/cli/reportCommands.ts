@@ -2,12 +2,14 @@
  * `diff`, `check` and `demo`: run the pipeline, render the report, write it, set the exit code.
  * Rendering is chosen here and done by src/render/; this file holds no report logic.
  */
-import { writeFileSync } from 'node:fs';
+import { closeSync, openSync, writeFileSync, writeSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { runCheck, runDiff, type CheckOptions, type DiffOptions } from '../pipeline.js';
 import { parseColumnsOption } from '../load/columns.js';
 import { RELEASE_COLUMNS } from '../load/loadRelease.js';
 import { renderReport, type RenderFormat } from '../render/index.js';
+import { jsonChunks } from '../render/json.js';
+import type { Report } from '../report/types.js';
 import { VERDICTS, type Verdict } from '../rescore/types.js';
 import { UsageError } from '../errors.js';
 import { exitCodeFor, type ExitCode } from './exitCode.js';
@@ -99,11 +101,42 @@ function emit(text: string, f: ReportFlags, io: Io): void {
   else io.out(text);
 }
 
+/** Pieces of text (each ending a line) written in batches of about 1 MiB: a big JSON report is never one string. */
+function emitPieces(pieces: Iterable<string>, f: ReportFlags, io: Io): void {
+  const fd = f.out ? openSync(f.out, 'w') : undefined;
+  try {
+    let batch: string[] = [];
+    let size = 0;
+    const flush = () => {
+      if (batch.length === 0) return;
+      const text = batch.join('');
+      if (fd !== undefined) writeSync(fd, text);
+      else io.out(text);
+      batch = [];
+      size = 0;
+    };
+    for (const piece of pieces) {
+      batch.push(piece);
+      size += piece.length;
+      if (size >= 1 << 20) flush();
+    }
+    flush();
+  } finally {
+    if (fd !== undefined) closeSync(fd);
+  }
+}
+
+/** The report in `format`: JSON in pieces, the other forms as one text. */
+function emitReport(format: RenderFormat, report: Report, f: ReportFlags, io: Io): void {
+  if (format === 'json') emitPieces(jsonChunks(report), f, io);
+  else emit(renderReport(format, report, { color: useColor(f, io), limit: parseLimit(f.limit), verdicts: parseVerdicts(f.verdict) }), f, io);
+}
+
 export async function runDiffCommand(oldPath: string, newPath: string, f: ReportFlags, io: Io): Promise<ExitCode> {
   const format = parseFormat(f.format, DIFF_FORMATS);
   const { report } = await runDiff({ ...diffOptions(oldPath, newPath, f), onProgress: io.progress?.file, onLoaded: afterInputsRead });
   io.progress?.phase('writing the report');
-  emit(renderReport(format, report, { color: useColor(f, io), limit: parseLimit(f.limit), verdicts: parseVerdicts(f.verdict) }), f, io);
+  emitReport(format, report, f, io);
   return exitCodeFor({});
 }
 
@@ -116,7 +149,7 @@ export async function runCheckCommand(oldPath: string, newPath: string, f: Repor
   const options: CheckOptions = { ...diffOptions(oldPath, newPath, f), mappings: f.mappings, failOn, state };
   const { report } = await runCheck({ ...options, onProgress: io.progress?.file, onLoaded: afterInputsRead });
   io.progress?.phase('writing the report');
-  emit(renderReport(format, report, { color: useColor(f, io), limit: parseLimit(f.limit), verdicts: parseVerdicts(f.verdict) }), f, io);
+  emitReport(format, report, f, io);
   if (f.summaryJson) {
     const summary = {
       tool: report.tool,

@@ -7,7 +7,7 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import Ajv2020 from 'ajv/dist/2020.js';
-import { renderJson } from '../../src/render/json.js';
+import { jsonChunks, renderJson } from '../../src/render/json.js';
 import { diffReleases, loadDiffInputs, runDiff } from '../../src/pipeline.js';
 import { loadMappings } from '../../src/load/index.js';
 import { rescoreMappings } from '../../src/rescore/rescoreMappings.js';
@@ -36,6 +36,23 @@ describe('renderJson', () => {
     expect(JSON.parse(json)).toEqual(report);
     expect(Object.keys(JSON.parse(json))).toEqual(Object.keys(report));
     expect(renderJson(structuredClone(report))).toBe(json);
+  });
+
+  it('in pieces (jsonChunks): the same text, each piece ending a line, a top-level array one element per piece', async () => {
+    const reports = [await hostileCheck(), await hostileDiff(), await demoCheckReport()];
+    for (const report of reports) {
+      const pieces = [...jsonChunks(report)];
+      expect(pieces.join('')).toBe(renderJson(report));
+      for (const piece of pieces) expect(piece.endsWith('\n')).toBe(true);
+    }
+    const demo = reports[2] as unknown as { mappings: unknown[] };
+    expect(demo.mappings.length).toBeGreaterThan(5);
+    expect([...jsonChunks(reports[2])].length).toBeGreaterThan(demo.mappings.length);
+    // Edge cases of JSON.stringify: keys without a JSON form, empty arrays and objects, holes
+    // and undefined in arrays, nested arrays, an empty report.
+    const odd = { a: undefined, b: [], c: {}, d: [undefined, null, [1, [2]], { e: undefined, f: 'x\ny' }], g: () => 1, h: 'last' } as unknown as Parameters<typeof renderJson>[0];
+    expect([...jsonChunks(odd)].join('')).toBe(renderJson(odd));
+    expect([...jsonChunks({} as Parameters<typeof renderJson>[0])].join('')).toBe(renderJson({} as Parameters<typeof renderJson>[0]));
   });
 });
 
