@@ -240,10 +240,12 @@ describe('lexicalKey', () => {
     expect(lexicalKey(' ; ')).toBe('');
   });
 
-  it('is invariant under shuffling the words and changing case', () => {
+  it('is invariant under shuffling the words and changing case, when a word is not a stop word', () => {
+    // A term of stop words only is keyed by its folded form, word order included (the test above).
     const word = fc.string({ unit: fc.constantFrom(...'abcdefimnorstu'), minLength: 1, maxLength: 10 });
     fc.assert(
       fc.property(fc.array(word, { minLength: 1, maxLength: 8 }), fc.integer(), (words, seed) => {
+        fc.pre(words.some((w) => !STOP_WORDS.has(w)));
         const shuffled = [...words];
         let x = seed;
         for (let i = shuffled.length - 1; i > 0; i--) {
