@@ -12,6 +12,7 @@ import { gzipSync } from 'node:zlib';
 import { BASE_COST, estimateFile, estimateMemory, afterInputsRead, guardMemory, HEAP_GROWING_PERCENT, HEAP_MARGIN, inputFilesOf, MEMORY_SHARE, planHeap, ROW_COST, SMALL_INPUTS, tuneCollector } from '../../src/cli/heap.js';
 import { createProgress, SILENT } from '../../src/cli/progress.js';
 import { loadHierarchy, loadMappings, loadRelease } from '../../src/load/index.js';
+import { runCheck, runDiff } from '../../src/pipeline.js';
 import { tempDir } from '../helpers/files.js';
 import { expectCleanExit, runCli } from './cli.js';
 
@@ -140,6 +141,28 @@ describe('tuneCollector', () => {
     expect(flags).toEqual([`--heap-growing-percent=${HEAP_GROWING_PERCENT}`]);
     expect(HEAP_GROWING_PERCENT).toBeGreaterThan(0);
   });
+});
+
+describe('onLoaded (where the CLI tunes the collector)', () => {
+  it('is called once by runDiff and runCheck, after every input is read', async () => {
+    const files = {
+      old: 'demo-data/release-r1.tsv',
+      new: 'demo-data/release-r2.tsv',
+      oldHierarchy: 'demo-data/hierarchy-r1.tsv',
+      newHierarchy: 'demo-data/hierarchy-r2.tsv',
+      history: 'demo-data/history-r2.tsv',
+    };
+    for (const run of [() => runDiff({ ...files, onProgress, onLoaded }), () => runCheck({ ...files, mappings: 'demo-data/mappings.tsv', onProgress, onLoaded })]) {
+      events.length = 0;
+      await run();
+      expect(events.filter((e) => e === 'loaded')).toHaveLength(1);
+      expect(events[events.length - 1]).toBe('loaded');
+      expect(new Set(events.slice(0, -1)).size).toBeGreaterThanOrEqual(5); // every input reported reading first
+    }
+  });
+  const events: string[] = [];
+  const onProgress = (path: string) => void events.push(path);
+  const onLoaded = () => void events.push('loaded');
 });
 
 describe('the CLI with a heap too small for its inputs', () => {
