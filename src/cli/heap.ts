@@ -203,7 +203,7 @@ export function planHeap(e: MemoryEstimate, limits: { heapLimit: number; physica
  * how little time collection took, up to a factor of 4 here: during re-scoring the heap went from
  * 441 MB after one full collection to 1,374 MB with no other, garbage included, which made most of
  * `check`'s peak. With 30 % from the moment the inputs are read, a 4 M-row `check`'s peak fell
- * from 3.17–3.18 GB to 2.89–2.90 GB (docs/BENCHMARKS.md, sixth run). Set from the start instead,
+ * from 3,167–3,180 MiB to 2,893–2,903 MiB (docs/BENCHMARKS.md, sixth run). Set from the start instead,
  * it gave the same peak but about ten more full collections while loading, which took 1–3 s
  * longer; set only before re-scoring, it came too late (the limit in force was already set).
  */
