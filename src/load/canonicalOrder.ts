@@ -172,6 +172,8 @@ export function applyCanonicalOrder(r: Release, bytes: ReleaseBytes, rebuildInde
  * when the children are out of order.
  */
 export function canonicalHierarchy(h: Hierarchy): Hierarchy {
+  // A loaded hierarchy is a graph in canonical order already (load/hierarchyGraph.ts).
+  if (h.graph) return h;
   if (childrenInOrder(h)) {
     // The usual file sorted by child: sort the parent lists that need it, keys as they are
     // (copying the Map of a million children cost 0.5 s).

@@ -18,11 +18,12 @@ import { MessageChannel, Worker, type TransferListItem } from 'node:worker_threa
 import { adoptConceptIndex, INDEX_STALL_SECONDS, type IndexAnswer } from '../rescore/indexThread.js';
 import { WorkerAnswers, answerState } from '../rescore/workerAnswers.js';
 import { loadRelease, type LoadReleaseOptions } from './loadRelease.js';
-import { loadHierarchy } from './loadHierarchy.js';
+import { hierarchyOf, loadHierarchy } from './loadHierarchy.js';
+import { HierarchyGraph, graphOf } from './hierarchyGraph.js';
 import type { ColumnRenames } from './columns.js';
 import type { ProgressCallback } from './readTable.js';
 import { ReleaseBytes, attachReleaseBytes, releaseBytesOf } from './releaseBytes.js';
-import type { Hierarchy, Release } from './types.js';
+import type { Diagnostic, Hierarchy, Release, RowAccounting } from './types.js';
 
 /** Files of fewer bytes are loaded on the calling thread (a worker costs about 50 ms to start). */
 export const THREAD_FROM_BYTES = 16 * 1024 * 1024;
@@ -154,17 +155,32 @@ export async function loadReleaseInThread(path: string, options: LoadReleaseOpti
   return release;
 }
 
+/** A loaded hierarchy as the worker posts it: its graph's arrays (moved) and ids (copied). */
+export interface PostedHierarchy {
+  meta: { path: string; sha256: string; accounting: RowAccounting; diagnostics: Diagnostic[] };
+  ids: readonly string[];
+  parentStart: Int32Array;
+  parentNodes: Int32Array;
+}
+
+/** The parts of a loaded hierarchy to post, and the buffers to move. */
+export function postHierarchy(h: Hierarchy): { posted: PostedHierarchy; transfer: ArrayBuffer[] } {
+  const g = graphOf(h);
+  const posted = { meta: { path: h.path, sha256: h.sha256, accounting: h.accounting, diagnostics: h.diagnostics }, ids: g.ids, parentStart: g.parentStart, parentNodes: g.parentNodes };
+  const transfer = [g.parentStart.buffer, g.parentNodes.buffer].filter((b): b is ArrayBuffer => b instanceof ArrayBuffer && b.byteLength > 0);
+  return { posted, transfer: [...new Set(transfer)] };
+}
+
 /**
- * loadHierarchy in a worker thread, likewise. The hierarchy comes back by structured clone (its
- * Map of parent lists is strings); a 1.25 M-row hierarchy took 3 s to read and its copy here
- * about 1 s (docs/BENCHMARKS.md).
+ * loadHierarchy in a worker thread, likewise. The graph's two integer arrays are moved; its ids
+ * come by structured clone (a string per distinct id).
  */
 export async function loadHierarchyInThread(path: string, options: { columns?: ColumnRenames; onProgress?: ProgressCallback } = {}, thread?: boolean): Promise<Hierarchy> {
   const script = threadScript(path, thread);
   if (script === undefined) return loadHierarchy(path, options);
   const { onProgress, ...rest } = options;
-  const h = (await inWorker<Hierarchy>(script, { kind: 'hierarchy', path, options: rest }, onProgress)).result;
-  if (h === undefined) return loadHierarchy(path, options);
+  const p = (await inWorker<PostedHierarchy>(script, { kind: 'hierarchy', path, options: rest }, onProgress)).result;
+  if (p === undefined) return loadHierarchy(path, options);
   threadStats.received++;
-  return h;
+  return hierarchyOf(p.meta, new HierarchyGraph(p.ids, p.parentStart, p.parentNodes));
 }

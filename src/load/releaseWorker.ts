@@ -8,7 +8,7 @@ import { indexSource } from '../rescore/conceptIndex.js';
 import { serveIndex, type IndexServerData } from '../rescore/indexServer.js';
 import { loadRelease, type LoadReleaseOptions } from './loadRelease.js';
 import { loadHierarchy } from './loadHierarchy.js';
-import { postRelease } from './releaseThread.js';
+import { postHierarchy, postRelease } from './releaseThread.js';
 
 const d = workerData as { kind: 'release' | 'hierarchy'; path: string; options: LoadReleaseOptions; progress: boolean; index?: { state: Int32Array; port: MessagePort } };
 const port = parentPort!;
@@ -17,7 +17,8 @@ const UNSHARED_COPY_MAX = 16 * 1024 * 1024;
 const onProgress = d.progress ? (read: number, size: number) => port.postMessage({ progress: [read, size] }) : undefined;
 try {
   if (d.kind === 'hierarchy') {
-    port.postMessage({ result: await loadHierarchy(d.path, { ...d.options, onProgress }) });
+    const { posted, transfer } = postHierarchy(await loadHierarchy(d.path, { ...d.options, onProgress }));
+    port.postMessage({ result: posted }, transfer);
   } else {
     const release = await loadRelease(d.path, { ...d.options, onProgress });
     // Asked to index it too: the index source is taken before the release's columns are moved

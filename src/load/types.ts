@@ -6,6 +6,7 @@
  * carry millions of term rows. Every input row is accounted for: `RowAccounting.read` equals
  * `used + rejected`, and every rejected row has a `Diagnostic`.
  */
+import type { HierarchyGraph } from './hierarchyGraph.js';
 
 /** Stable codes for row-level problems. */
 export const ROW_PROBLEMS = [
@@ -150,6 +151,12 @@ export interface Hierarchy extends Loaded {
   /** child concept id → parent concept ids */
   parents: Map<string, string[]>;
   edgeCount: number;
+  /**
+   * The same hierarchy as integers (load/hierarchyGraph.ts), in canonical order. The loader
+   * gives it, and then builds `parents` from it only when read; `graphOf` builds it for a
+   * hierarchy made as a plain Map.
+   */
+  graph?: HierarchyGraph;
 }
 
 export interface HistoryRow {

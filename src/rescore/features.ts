@@ -31,6 +31,7 @@ import { AsciiTokens } from '../text/asciiTokens.js';
 import { termTextAt, termTextBytes } from '../load/releaseBytes.js';
 import { jaroWinkler, levenshteinSimilarity, trigramDice } from '../text/similarity.js';
 import { DocumentFrequencies, tfidfCosine } from '../text/tfidf.js';
+import { HierarchyGraph, graphOf, sameParentNodes } from '../load/hierarchyGraph.js';
 
 export const LEXICAL_FEATURES = ['exact', 'folded', 'lexical', 'tfidf', 'trigram', 'jaro_winkler', 'levenshtein'] as const;
 export const CONTEXT_FEATURES = ['category_same', 'category_differs', 'hierarchy_shared', 'hierarchy_unrelated'] as const;
@@ -235,92 +236,196 @@ export function lexicalOfTerms(label: TextForms, terms: readonly TermEntry[], df
 // ---------------------------------------------------------------------------
 // Context: category and hierarchy
 
-const NO_PARENTS: readonly string[] = [];
+/**
+ * Ancestors of one concept within {@link ANCESTOR_DEPTH} levels, in the order of the walk:
+ * `nodes` of the index's graph, their `depths` (1 = parent), and the `keys` they are compared
+ * by: nodes of the graph the index compares with (`keysIn`), or, for an ancestor that graph does
+ * not have, a number below -1 that no other ancestor has.
+ */
+export interface AncestorSet {
+  readonly nodes: Int32Array;
+  readonly keys: Int32Array;
+  readonly depths: Uint8Array;
+}
 
-/** Ancestors of concepts in one hierarchy, with their shortest distance, cached. */
+const NO_ANCESTORS: AncestorSet = { nodes: new Int32Array(0), keys: new Int32Array(0), depths: new Uint8Array(0) };
+/** Entries per pool chunk of the cached sets. */
+const POOL = 1 << 16;
+
+/**
+ * Ancestors of concepts in one hierarchy, with their shortest distance, cached per node. The
+ * walks follow the hierarchy's graph (load/hierarchyGraph.ts) as integers; concepts of a release
+ * are found by `ofConcept` through the graph's merge of the two id lists, and the string methods
+ * (`ancestors`, `hasAncestors`, `sameAncestors`, …) by a binary search of the id.
+ */
 export class AncestorIndex {
   readonly hierarchy: Hierarchy;
-  private readonly cache = new Map<string, Map<string, number>>();
+  readonly graph: HierarchyGraph;
+  /** Node → key (a node of the `keysIn` graph), when the keys are not the nodes themselves. */
+  private readonly keyOf: Int32Array | undefined;
+  private readonly cache: (AncestorSet | undefined)[] = [];
+  private readonly stamp: Int32Array;
+  private walk = 0;
+  private scratch = new Int32Array(64);
+  private scratchDepth = new Uint8Array(64);
+  private poolNodes = new Int32Array(POOL);
+  private poolKeys = new Int32Array(POOL);
+  private poolDepths = new Uint8Array(POOL);
+  private poolUsed = 0;
 
-  constructor(hierarchy: Hierarchy) {
+  /** `keysIn`: the graph whose nodes the ancestor sets are compared by (this one when not given). */
+  constructor(hierarchy: Hierarchy, keysIn?: HierarchyGraph) {
     this.hierarchy = hierarchy;
+    this.graph = graphOf(hierarchy);
+    this.keyOf = keysIn && keysIn !== this.graph ? this.graph.nodesIn(keysIn) : undefined;
+    this.stamp = new Int32Array(this.graph.nodeCount);
+  }
+
+  /** The node of concept c of release r, or -1. */
+  nodeOfConcept(r: Release, c: number): number {
+    return this.graph.conceptNodes(r)[c];
   }
 
   /**
-   * Ancestors of `id` within `ANCESTOR_DEPTH` levels → depth (1 = parent). Breadth-first with a
-   * visited set, so cycles in the input end the walk instead of looping; `id` itself is never
-   * its own ancestor.
+   * Ancestors of node n (-1: none). Breadth-first, parents in id order, with a mark per node, so
+   * cycles in the input end the walk instead of looping; n itself is never its own ancestor.
    */
-  ancestors(id: string): ReadonlyMap<string, number> {
-    let found = this.cache.get(id);
-    if (found) return found;
-    found = new Map();
-    let frontier = [id];
-    for (let depth = 1; depth <= ANCESTOR_DEPTH && frontier.length; depth++) {
-      const next: string[] = [];
-      for (const cur of frontier) {
-        for (const p of this.hierarchy.parents.get(cur) ?? []) {
-          if (p === id || found.has(p)) continue;
-          found.set(p, depth);
-          next.push(p);
+  ofNode(n: number): AncestorSet {
+    if (n < 0) return NO_ANCESTORS;
+    const cached = this.cache[n];
+    if (cached) return cached;
+    const { parentStart, parentNodes } = this.graph;
+    const stamp = this.stamp;
+    const walk = ++this.walk;
+    stamp[n] = walk;
+    let count = 0;
+    let from = 0;
+    let to = 0;
+    for (let depth = 1; depth <= ANCESTOR_DEPTH; depth++) {
+      for (let i = from - (depth === 1 ? 1 : 0); i < to; i++) {
+        const cur = i < from ? n : this.scratch[i];
+        for (let k = parentStart[cur]; k < parentStart[cur + 1]; k++) {
+          const p = parentNodes[k];
+          if (stamp[p] === walk) continue;
+          stamp[p] = walk;
+          if (count === this.scratch.length) this.growScratch();
+          this.scratch[count] = p;
+          this.scratchDepth[count] = depth;
+          count++;
         }
       }
-      frontier = next;
+      from = to;
+      to = count;
+      if (from === to) break;
     }
-    this.cache.set(id, found);
-    return found;
+    const set = count === 0 ? NO_ANCESTORS : this.store(count);
+    this.cache[n] = set;
+    return set;
+  }
+
+  private growScratch(): void {
+    const nodes = new Int32Array(this.scratch.length * 2);
+    nodes.set(this.scratch);
+    this.scratch = nodes;
+    const depths = new Uint8Array(nodes.length);
+    depths.set(this.scratchDepth);
+    this.scratchDepth = depths;
+  }
+
+  /** The first `count` scratch entries as a set, in the pool. */
+  private store(count: number): AncestorSet {
+    if (this.poolUsed + count > this.poolNodes.length) {
+      const size = Math.max(POOL, count);
+      this.poolNodes = new Int32Array(size);
+      this.poolKeys = this.keyOf ? new Int32Array(size) : this.poolNodes;
+      this.poolDepths = new Uint8Array(size);
+      this.poolUsed = 0;
+    }
+    const at = this.poolUsed;
+    this.poolUsed += count;
+    const nodes = this.poolNodes.subarray(at, at + count);
+    nodes.set(this.scratch.subarray(0, count));
+    const depths = this.poolDepths.subarray(at, at + count);
+    depths.set(this.scratchDepth.subarray(0, count));
+    let keys = nodes;
+    if (this.keyOf) {
+      keys = this.poolKeys.subarray(at, at + count);
+      for (let i = 0; i < count; i++) {
+        const k = this.keyOf[nodes[i]];
+        keys[i] = k >= 0 ? k : -2 - nodes[i];
+      }
+    }
+    return { nodes, keys, depths };
+  }
+
+  /** Ancestors of concept c of release r. */
+  ofConcept(r: Release, c: number): AncestorSet {
+    return this.ofNode(this.nodeOfConcept(r, c));
+  }
+
+  /** Ancestors of `id` within `ANCESTOR_DEPTH` levels → depth (1 = parent), in the order of the walk. */
+  ancestors(id: string): ReadonlyMap<string, number> {
+    const set = this.ofNode(this.graph.nodeOf(id));
+    const out = new Map<string, number>();
+    for (let i = 0; i < set.nodes.length; i++) out.set(this.graph.ids[set.nodes[i]], set.depths[i]);
+    return out;
+  }
+
+  /** Does node n have any ancestor (a parent other than itself)? */
+  hasAncestorsNode(n: number): boolean {
+    if (n < 0) return false;
+    const cached = this.cache[n];
+    if (cached) return cached.nodes.length > 0;
+    const { parentStart, parentNodes } = this.graph;
+    for (let k = parentStart[n]; k < parentStart[n + 1]; k++) if (parentNodes[k] !== n) return true;
+    return false;
   }
 
   /** Does `id` have any ancestor (a parent other than itself)? */
   hasAncestors(id: string): boolean {
-    const cached = this.cache.get(id);
-    if (cached) return cached.size > 0;
-    for (const p of this.hierarchy.parents.get(id) ?? []) if (p !== id) return true;
-    return false;
+    return this.hasAncestorsNode(this.graph.nodeOf(id));
   }
 
   /**
-   * Are the ancestors of `id` (to `ANCESTOR_DEPTH` levels, with their depths) the same in
-   * `other`? True when every concept the walk of `ancestors` expands has the same parent list in
-   * both hierarchies, which makes the two walks the same step by step; found without building
-   * either map. (False can also mean equal maps reached another way: callers then compare them.)
+   * Are the ancestors of a concept (to `ANCESTOR_DEPTH` levels, with their depths) the same in
+   * `other`, where it is node `na` here and `nb` there (-1: not in that graph)? True when every
+   * concept the walk of `ofNode` expands has the same parent list in both hierarchies, which
+   * makes the two walks the same step by step; found without building either set. (False can
+   * also mean equal sets reached another way: callers then compare them.)
    */
-  sameAncestors(other: AncestorIndex, id: string): boolean {
-    const b = other.hierarchy.parents;
-    return this.hierarchy.parents === b || this.sameWithin(b, id, id, ANCESTOR_DEPTH);
+  sameAncestorsNodes(other: AncestorIndex, na: number, nb: number): boolean {
+    if (other.graph === this.graph) return true;
+    const inOther = this.graph.nodesIn(other.graph);
+    if (!sameParentNodes(this.graph, na, other.graph, nb, inOther)) return false;
+    // The parents' and grandparents' lists (ANCESTOR_DEPTH is at least 2).
+    return na < 0 || this.sameAbove(other.graph, inOther, na, na, ANCESTOR_DEPTH - 1);
   }
 
-  /**
-   * Does every concept within k - 1 steps up from `cur` (the walk's `depth` levels: `cur` is
-   * expanded unless k is 1; `root` is not walked again) have the same parent list in `b`? Each
-   * list is looked up once per visit and walked from; no set, no arrays. A concept reached by two
-   * paths may be compared twice, which changes nothing.
-   */
-  private sameWithin(b: Map<string, string[]>, root: string, cur: string, k: number): boolean {
-    const pa = this.hierarchy.parents.get(cur) ?? NO_PARENTS;
-    const pb = b.get(cur) ?? NO_PARENTS;
-    if (pa !== pb) {
-      if (pa.length !== pb.length) return false;
-      for (let j = 0; j < pa.length; j++) if (pa[j] !== pb[j]) return false;
+  /** Do the parents of `cur` and the concepts within k - 1 steps above them (`root` not again) have the same parent lists in `b`? */
+  private sameAbove(b: HierarchyGraph, inB: Int32Array, root: number, cur: number, k: number): boolean {
+    const { parentStart, parentNodes } = this.graph;
+    for (let j = parentStart[cur]; j < parentStart[cur + 1]; j++) {
+      const p = parentNodes[j];
+      if (p === root) continue;
+      if (!sameParentNodes(this.graph, p, b, inB[p], inB)) return false;
+      if (k > 1 && !this.sameAbove(b, inB, root, p, k - 1)) return false;
     }
-    if (k === 1) return true;
-    for (const p of pa) if (p !== root && !this.sameWithin(b, root, p, k - 1)) return false;
     return true;
+  }
+
+  /** `sameAncestorsNodes` for an id. */
+  sameAncestors(other: AncestorIndex, id: string): boolean {
+    return this.sameAncestorsNodes(other, this.graph.nodeOf(id), other.graph.nodeOf(id));
   }
 
   /** Does `id` have the same parent list, as given, in `other`? (No parents and no entry are the same.) */
   sameParents(other: AncestorIndex, id: string): boolean {
-    const pa = this.hierarchy.parents.get(id) ?? NO_PARENTS;
-    const pb = other.hierarchy.parents.get(id) ?? NO_PARENTS;
-    if (pa === pb) return true;
-    if (pa.length !== pb.length) return false;
-    for (let k = 0; k < pa.length; k++) if (pa[k] !== pb[k]) return false;
-    return true;
+    return sameParentNodes(this.graph, this.graph.nodeOf(id), other.graph, other.graph.nodeOf(id), this.graph.nodesIn(other.graph));
   }
 
   /** Parents of `id`, sorted, deduplicated. */
   parents(id: string): string[] {
-    return [...new Set(this.hierarchy.parents.get(id) ?? [])].sort();
+    return this.graph.parentsOf(id) ?? [];
   }
 }
 
@@ -346,16 +451,42 @@ export function ancestorSimilarity(a: ReadonlyMap<string, number>, b: ReadonlyMa
   return shared / union;
 }
 
+/** `ancestorSimilarity` of two sets compared by their keys (the same sums in the same order). */
+export function ancestorSetSimilarity(a: AncestorSet, b: AncestorSet): number {
+  const na = a.keys.length;
+  const nb = b.keys.length;
+  if (na === 0 || nb === 0) return 0;
+  let shared = 0;
+  let union = 0;
+  for (let i = 0; i < na; i++) {
+    const wa = 1 / a.depths[i];
+    const j = indexOfKey(b.keys, a.keys[i]);
+    if (j < 0) union += wa;
+    else {
+      const wb = 1 / b.depths[j];
+      shared += Math.min(wa, wb);
+      union += Math.max(wa, wb);
+    }
+  }
+  for (let j = 0; j < nb; j++) if (indexOfKey(a.keys, b.keys[j]) < 0) union += 1 / b.depths[j];
+  return shared / union;
+}
+
+function indexOfKey(keys: Int32Array, k: number): number {
+  for (let i = 0; i < keys.length; i++) if (keys[i] === k) return i;
+  return -1;
+}
+
 /** Where a concept sits: its category and ancestors (null when unknown). */
 export interface ConceptContext {
   category: string | null;
-  ancestors: ReadonlyMap<string, number> | null;
+  ancestors: AncestorSet | null;
 }
 
 /** The context of concept c of release r (category from the release, ancestors from `ancestors`). */
 export function conceptContext(r: Release, c: number, ancestors?: AncestorIndex): ConceptContext {
   const i = r.conceptCategory[c];
-  return { category: i < 0 ? null : r.categories[i], ancestors: ancestors ? ancestors.ancestors(r.conceptIds[c]) : null };
+  return { category: i < 0 ? null : r.categories[i], ancestors: ancestors ? ancestors.ofConcept(r, c) : null };
 }
 
 /** Write the context features of `candidate` relative to `oldTarget` into out[offset .. offset+4). */
@@ -368,8 +499,8 @@ export function contextFeatures(oldTarget: ConceptContext | null, candidate: Con
   }
   const a = oldTarget.ancestors;
   const b = candidate.ancestors;
-  if (a && b && a.size > 0 && b.size > 0) {
-    const s = ancestorSimilarity(a, b);
+  if (a && b && a.keys.length > 0 && b.keys.length > 0) {
+    const s = ancestorSetSimilarity(a, b);
     out[offset + 2] = s;
     if (s === 0) out[offset + 3] = 1;
   }

@@ -22,6 +22,7 @@
  * trains the scorer; the results do not depend on it (tests/rescore/lexicalThread.test.ts).
  */
 import { conceptIndexOf, termTextAt } from '../load/releaseBytes.js';
+import { graphOf, sameParentNodes } from '../load/hierarchyGraph.js';
 
 import type { DiffContext } from '../classify/context.js';
 import { categoryName, isActive, resolveHistory } from '../classify/context.js';
@@ -33,7 +34,7 @@ import type { IndexHit } from './conceptIndex.js';
 import type { Mapping, MappingSet, Release } from '../load/types.js';
 import { impactOf } from '../rank/rankByImpact.js';
 import {
-  AncestorIndex, FEATURE_COUNT, LEXICAL_COUNT, activeTermsOf, ancestorSimilarity, conceptContext, contextFeatures, releaseDocumentFrequencies, textForms,
+  AncestorIndex, FEATURE_COUNT, LEXICAL_COUNT, activeTermsOf, ancestorSetSimilarity, conceptContext, contextFeatures, releaseDocumentFrequencies, textForms,
   type ConceptContext, type TextForms,
 } from './features.js';
 import { Scorer, trainScorer, type TrainOptions } from './trainScorer.js';
@@ -207,7 +208,8 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   targets.forEach((t, i) => {
     if (t.cOld !== undefined && t.cNew !== undefined && isActive(oldR, t.cOld) && !ctx.olds.has(t.cOld) && !ctx.news.has(t.cNew)) jobOf[i] = jobs++;
   });
-  const oldAnc = oldH ? new AncestorIndex(oldH) : undefined;
+  // The old target's ancestors are compared with a new candidate's by the new hierarchy's nodes.
+  const oldAnc = oldH ? new AncestorIndex(oldH, newH && newH !== oldH ? graphOf(newH) : undefined) : undefined;
   const newAnc = newH ? (newH === oldH ? oldAnc : new AncestorIndex(newH)) : undefined;
   const bothHierarchies = ctx.input.oldHierarchy !== undefined && ctx.input.newHierarchy !== undefined;
 
@@ -298,22 +300,24 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
    * or both sets are empty), which holds for most mappings.
    */
   // A mapping asks for its target twice in a row (old release, then new): the last answer is kept.
-  let hasId: string | undefined;
+  let hasNode = -2;
   let has = false;
-  const hasAncestors = (id: string) => (id === hasId ? has : ((hasId = id), (has = oldAnc!.hasAncestors(id))));
+  const hasAncestors = (n: number) => (n === hasNode ? has : ((hasNode = n), (has = oldAnc!.hasAncestorsNode(n))));
   const selfScore = (lex: Float64Array, cOld: number, cNew?: number): number => {
     x.set(lex);
     const category = conceptContext(oldR, cOld).category;
     contextFeatures({ category, ancestors: null }, { category: cNew === undefined ? category : conceptContext(newR, cNew).category, ancestors: null }, x, LEXICAL_COUNT);
     const anc = cNew === undefined ? oldAnc : newAnc;
     if (oldAnc && anc) {
-      const id = oldR.conceptIds[cOld];
+      // The target's node in each hierarchy (the same id: cNew is the old concept's id match).
+      const na = oldAnc.nodeOfConcept(oldR, cOld);
+      const nb = anc === oldAnc ? na : anc.nodeOfConcept(newR, cNew!);
       let s = -1;
-      if (anc === oldAnc || oldAnc.sameAncestors(anc, id)) s = hasAncestors(id) ? 1 : -1;
+      if (anc === oldAnc || oldAnc.sameAncestorsNodes(anc, na, nb)) s = hasAncestors(na) ? 1 : -1;
       else {
-        const a = oldAnc.ancestors(id);
-        const b = anc.ancestors(id);
-        if (a.size > 0 && b.size > 0) s = ancestorSimilarity(a, b);
+        const a = oldAnc.ofNode(na);
+        const b = anc.ofNode(nb);
+        if (a.keys.length > 0 && b.keys.length > 0) s = ancestorSetSimilarity(a, b);
       }
       if (s >= 0) {
         x[LEXICAL_COUNT + 2] = s;
@@ -568,7 +572,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
         reasons.unshift(`The label now matches ${describe(better)} better than the target (${round3(sNew)}).`);
         return finish('drifted', scoreOld, sNew);
       }
-      const moved = parentsChanged(id);
+      const moved = parentsChanged(id, cOld, cNew);
       if (moved) {
         reasons.unshift(moved, `The target's terms are unchanged and the label still matches it (${round3(scoreOld)}).`);
         return finish('context_changed', scoreOld, sNew, 'target');
@@ -709,7 +713,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     const cb = categoryName(oldR, cOld);
     const ca = categoryName(newR, n);
     if (oldR.hasColumn.category && newR.hasColumn.category && cb !== ca) why.push(`The category of ${id} changed from ${cb ?? '(none)'} to ${ca ?? '(none)'}.`);
-    const moved = parentsChanged(id);
+    const moved = parentsChanged(id, cOld, n);
     if (moved) why.push(moved);
     if (why.length) {
       reasons.unshift(...why, `The label still matches the target (${round3(sLexNew)}).`);
@@ -745,12 +749,14 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     return home;
   }
 
-  /** A sentence when the parents of `id` differ between the two hierarchies, else ''. */
-  function parentsChanged(id: string): string {
+  /** A sentence when the parents of `id` (old concept cOld, new concept cNew) differ between the two hierarchies, else ''. */
+  function parentsChanged(id: string, cOld: number, cNew: number): string {
     if (!bothHierarchies || !oldAnc || !newAnc) return '';
-    if (oldAnc.sameParents(newAnc, id)) return '';
-    const before = oldAnc.parents(id);
-    const after = newAnc.parents(id);
+    const na = oldAnc.nodeOfConcept(oldR, cOld);
+    const nb = newAnc.nodeOfConcept(newR, cNew);
+    if (sameParentNodes(oldAnc.graph, na, newAnc.graph, nb, oldAnc.graph.nodesIn(newAnc.graph))) return '';
+    const before = na < 0 ? [] : oldAnc.graph.parentIds(na);
+    const after = nb < 0 ? [] : newAnc.graph.parentIds(nb);
     if (before.join('\u0001') === after.join('\u0001')) return '';
     const added = after.filter((p) => !before.includes(p));
     const removed = before.filter((p) => !after.includes(p));

@@ -10,6 +10,7 @@ import { makeChange } from '../detector.js';
 import { categoryName, termSetSimilarity, round } from '../context.js';
 import { activeTerms } from '../../align/alignTerms.js';
 import { termTextAt } from '../../load/releaseBytes.js';
+import { graphOf } from '../../load/hierarchyGraph.js';
 
 export const idReuse: Detector<'id_reuse'> = {
   kind: 'id_reuse',
@@ -24,8 +25,8 @@ export const idReuse: Detector<'id_reuse'> = {
       const similarity = round(termSetSimilarity(before, after));
       const categoryBefore = categoryName(ctx.old, o.c);
       const categoryAfter = categoryName(ctx.new, n);
-      const ph = ctx.input.oldHierarchy?.parents.get(o.id)?.slice().sort().join('|');
-      const nh = ctx.input.newHierarchy?.parents.get(o.id)?.slice().sort().join('|');
+      const ph = ctx.input.oldHierarchy && graphOf(ctx.input.oldHierarchy).parentsOf(o.id)?.join('|');
+      const nh = ctx.input.newHierarchy && graphOf(ctx.input.newHierarchy).parentsOf(o.id)?.join('|');
       const contextKept = categoryBefore === categoryAfter && (ph === undefined || ph === nh);
       const wentTo = [...o.flows.keys()].filter((k) => k !== n).map((k) => ctx.new.conceptIds[k]).sort();
       const terms = [
