@@ -12,6 +12,7 @@ import fc from 'fast-check';
 import { loadHierarchy } from '../../src/load/loadHierarchy.js';
 import { HierarchyGraph, alignIds, graphOf } from '../../src/load/hierarchyGraph.js';
 import { clean } from '../../src/load/growable.js';
+import { hashBytes } from '../../src/load/releaseBytes.js';
 import { quoteValue } from '../../src/load/ledger.js';
 import { AncestorIndex, ancestorSetSimilarity, ancestorSimilarity } from '../../src/rescore/features.js';
 import type { Hierarchy } from '../../src/load/types.js';
@@ -40,8 +41,11 @@ function reference(rows: [string, string][]): { parents: Map<string, string[]>; 
   return { parents: sorted, rejected };
 }
 
-/** Ids with the white space, case and non-ASCII letters a real file has; no tab, quote or line end. */
-const ID = fc.constantFrom('A', 'B', 'C9', 'C10', ' A', 'B ', '\u000bA', '\u0001A', 'a', '', 'Ä1', 'é', 'B\u00a0', ' \u00a0B', 'x y', 'Z');
+/**
+ * Ids with the white space, case and non-ASCII letters a real file has (no tab, quote or line
+ * end), and ids of 8 bytes and longer, which the loader keeps differently (in its hash slot up to 8).
+ */
+const ID = fc.constantFrom('A', 'B', 'C9', 'C10', ' A', 'B ', '\u000bA', '\u0001A', 'a', '', 'Ä1', 'é', 'B\u00a0', ' \u00a0B', 'x y', 'Z', 'ABCDEFGH', 'ABCDEFGX', 'ABCDEFGHI', 'ABCDEFGHJ', '1234567890123456');
 
 function hierarchyFile(rows: [string, string][], csv: boolean): string {
   const sep = csv ? ',' : '\t';
@@ -53,8 +57,9 @@ describe('loadHierarchy builds the graph the reference rules give', () => {
   for (const csv of [false, true]) {
     it(`${csv ? 'CSV (string path)' : 'TSV (bytes, and strings for non-ASCII records)'}: parents, rejected rows and their messages`, async () => {
       await fc.assert(
-        fc.asyncProperty(fc.array(fc.tuple(ID, ID), { maxLength: 40 }), async (rows) => {
-          // CSV keeps surrounding spaces inside quotes only; unquoted values are the same either way.
+        fc.asyncProperty(fc.array(fc.tuple(ID, ID), { maxLength: 40 }), async (drawn) => {
+          // Plain rows first: a file of a few control characters only is refused as binary.
+          const rows: [string, string][] = [['K1', 'K0'], ['K2', 'K0'], ['K3', 'K1'], ['K4', 'K1'], ...drawn];
           const h = await loadHierarchy(hierarchyFile(rows, csv));
           const ref = reference(rows);
           expect([...h.parents]).toEqual([...ref.parents]);
@@ -82,6 +87,21 @@ describe('loadHierarchy builds the graph the reference rules give', () => {
     expect(g.parentsOf('NONE')).toBeUndefined();
     expect(g.children).toBe(3);
     expect(h.diagnostics.map((d) => d.message)).toEqual(['duplicate of line 2: "C3" → "C2"']);
+  });
+});
+
+describe('the id table of the loader', () => {
+  it('keeps ids with the same hash apart, short (kept in the slot) and long (compared as bytes)', async () => {
+    // Pairs with the same 32-bit FNV-1a hash, found by a search over numbered ids for this test.
+    const pairs = [['C1000439599', 'C1000622382'], ['C1000439598', 'C1000622383'], ['S2412789', 'S2649192']];
+    for (const [a, b] of pairs) {
+      const bytes = (s: string) => Buffer.from(s, 'latin1');
+      expect(hashBytes(bytes(a), 0, a.length)).toBe(hashBytes(bytes(b), 0, b.length));
+    }
+    const rows: [string, string][] = pairs.flatMap(([a, b]) => [[a, 'P'], [b, 'Q'], ['R', a]] as [string, string][]);
+    const h = await loadHierarchy(hierarchyFile(rows, false));
+    expect([...h.parents]).toEqual([...reference(rows).parents]);
+    expect(h.graph!.nodeCount).toBe(9);
   });
 });
 
