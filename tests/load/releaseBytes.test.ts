@@ -110,6 +110,41 @@ describe('concept lookups after the canonical reorder', () => {
     expect(['C1', 'C2', 'C3'].map((id) => conceptIndexOf(r, id))).toEqual([0, 1, -1]);
   });
 
+  it('terms out of order within sorted concepts are put in the order a full renumbering gives', async () => {
+    // Concepts in id order with their terms together: only the terms within concepts are sorted
+    // (canonicalOrder.ts, sortWithinConcepts). The same rows with the concepts reversed take the
+    // full renumbering; every column must come out the same. Over 16 terms a concept, the merge sort.
+    const columns = (r: Release) => ({
+      ids: ids(r), start: Array.from(r.conceptTermStart), terms: Array.from(r.conceptTerms), concept: Array.from(r.termConcept), text: r.termText, id: r.termId,
+      type: Array.from(r.termType), line: Array.from(r.termLine), status: Array.from(r.termStatus), language: Array.from(r.termLanguage),
+    });
+    const TYPE = ['preferred', 'synonym', 'abbreviation'];
+    for (let seed = 1; seed <= 30; seed++) {
+      let x = seed;
+      const next = (n: number) => ((x = (Math.imul(x, 1103515245) + 12345) >>> 0) % n);
+      const groups: string[][][] = [];
+      for (let c = 0; c < 6; c++) {
+        const count = c === 5 ? 20 : 1 + next(4);
+        // Distinct texts, one preferred term; the rows shuffled, so the preferred term is seldom first.
+        const rows = Array.from({ length: count }, (_, k) => [`C${c}`, `t${next(5)}${k}`, k === 0 ? 'preferred' : TYPE[1 + next(2)], next(2) ? `T${next(9)}` : '']);
+        for (let k = count - 1; k > 0; k--) {
+          const j = next(k + 1);
+          [rows[k], rows[j]] = [rows[j], rows[k]];
+        }
+        groups.push(rows);
+      }
+      const rowsA = groups.flat();
+      const rowsB = [...groups].reverse().flat();
+      const sorted = await loadRelease(writeFile(tempDir(), 'a.tsv', tsv([H, ...rowsA])), { order: 'canonical' });
+      const reversed = await loadRelease(writeFile(tempDir(), 'b.tsv', tsv([H, ...rowsB])), { order: 'canonical' });
+      const a = columns(sorted);
+      const b = columns(reversed);
+      // Lines differ by layout: compare the rows each line points at instead.
+      expect({ ...a, line: undefined }).toEqual({ ...b, line: undefined });
+      expect(a.line.map((l) => rowsA[l - 2].join('\t'))).toEqual(b.line.map((l) => rowsB[l - 2].join('\t')));
+    }
+  });
+
   it('a file in no order: every id is found, and concepts pair across releases', async () => {
     const rows = [['C3', 'c', 'preferred', 'T3'], ['C1', 'a', 'preferred', 'T1'], ['C2', 'b', 'preferred', 'T2']];
     const r = await loadRelease(writeFile(tempDir(), 'r.tsv', tsv([H, ...rows])), { order: 'canonical' });
