@@ -4,9 +4,9 @@
  * cannot be its own parent). Longer cycles are found later, where the hierarchy is walked.
  *
  * The ids of a plain TSV record are taken as bytes: each distinct id is copied once into an id
- * table (a hash over its bytes gives its number), each edge is two integers and a line, and a
- * duplicate edge is found in a hash table of edges. No string is made per row; one per distinct
- * id at the end, when the ids are sorted into the graph's node order. (A Map from child id to a
+ * table (a hash over its bytes gives its number), and each edge is two integers and a line; a
+ * duplicate edge is found when each child's parents are sorted (buildGraph). No string is made
+ * per row; one per distinct id at the end, when the ids are sorted into the graph's node order. (A Map from child id to a
  * list of parent ids took 1.7 s of a 1.25 M-row hierarchy's load; measured in docs/BENCHMARKS.md.)
  * `parents`, the Map form, is built from the graph on first use only.
  */
@@ -170,15 +170,23 @@ export function buildGraph(strings: string[], edges: { child: Int32Array; parent
     nodes[at] = rank[edges.parent[e]];
     lines[at] = edges.line[e];
   }
-  // Each child's parents ascending, by a stable insertion sort (a child has few parents), so a
-  // parent given twice sits next to its first line; the later ones are dropped.
+  // Each child's parents ascending, by (parent, line), so a parent given twice sits next to its
+  // first line; the later ones are dropped. An insertion sort for the usual few parents, a merge
+  // sort above 16 (a child with thousands of parents must not cost their square).
   const duplicates: DuplicateEdge[] = [];
   const parentStart = new Int32Array(count + 1);
   let out = 0;
   for (let k = 0; k < count; k++) {
     const s = start[k];
     const end = start[k + 1];
-    for (let i = s + 1; i < end; i++) {
+    if (end - s > 16) {
+      const idx = Array.from({ length: end - s }, (_, i) => s + i).sort((a, b) => nodes[a] - nodes[b] || lines[a] - lines[b]);
+      const sortedNodes = idx.map((i) => nodes[i]);
+      const sortedLines = idx.map((i) => lines[i]);
+      nodes.set(sortedNodes, s);
+      lines.set(sortedLines, s);
+    }
+    for (let i = s + 1; i < end && end - s <= 16; i++) {
       const v = nodes[i];
       const l = lines[i];
       let j = i - 1;

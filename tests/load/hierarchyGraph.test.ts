@@ -90,6 +90,19 @@ describe('loadHierarchy builds the graph the reference rules give', () => {
   });
 });
 
+describe('a child with many parents', () => {
+  it('has them sorted and its duplicate edges found past the insertion sort (over 16 parents)', async () => {
+    // 30 parents in a scrambled order, five of them given twice: the reference rules decide.
+    const parents = Array.from({ length: 30 }, (_, k) => `P${(k * 7) % 30}`);
+    const rows: [string, string][] = [...parents.map((p) => ['X', p] as [string, string]), ...[3, 9, 12, 20, 27].map((k) => ['X', `P${k}`] as [string, string]), ['Y', 'P1']];
+    const h = await loadHierarchy(hierarchyFile(rows, false));
+    const ref = reference(rows);
+    expect([...h.parents]).toEqual([...ref.parents]);
+    expect(h.diagnostics.map((d) => [d.line, d.column, d.code, d.message])).toEqual(ref.rejected);
+    expect(h.diagnostics).toHaveLength(5);
+  });
+});
+
 describe('the id table of the loader', () => {
   it('keeps ids with the same hash apart, short (kept in the slot) and long (compared as bytes)', async () => {
     // Pairs with the same 32-bit FNV-1a hash, found by a search over numbered ids for this test.
