@@ -305,8 +305,13 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   const hasAncestors = (n: number) => (n === hasNode ? has : ((hasNode = n), (has = oldAnc!.hasAncestorsNode(n))));
   const selfScore = (lex: Float64Array, cOld: number, cNew?: number): number => {
     x.set(lex);
-    const category = conceptContext(oldR, cOld).category;
-    contextFeatures({ category, ancestors: null }, { category: cNew === undefined ? category : conceptContext(newR, cNew).category, ancestors: null }, x, LEXICAL_COUNT);
+    // contextFeatures of the two categories, ancestors aside (set below), without making contexts.
+    const ia = oldR.conceptCategory[cOld];
+    const a = ia < 0 ? null : oldR.categories[ia];
+    const ib = cNew === undefined ? -2 : newR.conceptCategory[cNew];
+    const b = ib === -2 ? a : ib < 0 ? null : newR.categories[ib];
+    x[LEXICAL_COUNT] = x[LEXICAL_COUNT + 1] = x[LEXICAL_COUNT + 2] = x[LEXICAL_COUNT + 3] = 0;
+    if (a !== null && b !== null) x[a === b ? LEXICAL_COUNT : LEXICAL_COUNT + 1] = 1;
     const anc = cNew === undefined ? oldAnc : newAnc;
     if (oldAnc && anc) {
       // The target's node in each hierarchy (the same id: cNew is the old concept's id match).
@@ -315,9 +320,9 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
       let s = -1;
       if (anc === oldAnc || oldAnc.sameAncestorsNodes(anc, na, nb)) s = hasAncestors(na) ? 1 : -1;
       else {
-        const a = oldAnc.ofNode(na);
-        const b = anc.ofNode(nb);
-        if (a.keys.length > 0 && b.keys.length > 0) s = ancestorSetSimilarity(a, b);
+        const sa = oldAnc.ofNode(na);
+        const sb = anc.ofNode(nb);
+        if (sa.keys.length > 0 && sb.keys.length > 0) s = ancestorSetSimilarity(sa, sb);
       }
       if (s >= 0) {
         x[LEXICAL_COUNT + 2] = s;
