@@ -12,13 +12,9 @@
  * plain `parents` Map (tests, importers) gets its graph from `graphOf`, built once and cached.
  */
 import type { Hierarchy, Release } from './types.js';
+import { inStringOrder, indexInSorted } from './releaseBytes.js';
 
 const cmpStrings = (a: string, b: string): number => (a < b ? -1 : a > b ? 1 : 0);
-
-function isSorted(ids: readonly string[]): boolean {
-  for (let k = 1; k < ids.length; k++) if (!(ids[k - 1] < ids[k])) return false;
-  return true;
-}
 
 export class HierarchyGraph {
   /** Node n is the concept id ids[n]; strictly increasing. */
@@ -53,17 +49,7 @@ export class HierarchyGraph {
 
   /** The node of `id`, or -1 (binary search). */
   nodeOf(id: string): number {
-    const ids = this.ids;
-    let lo = 0;
-    let hi = ids.length - 1;
-    while (lo <= hi) {
-      const mid = (lo + hi) >>> 1;
-      const v = ids[mid];
-      if (v === id) return mid;
-      if (v < id) lo = mid + 1;
-      else hi = mid - 1;
-    }
-    return -1;
+    return indexInSorted(this.ids, id);
   }
 
   /** Parent ids of node n, in id order. */
@@ -85,22 +71,12 @@ export class HierarchyGraph {
    * (a canonical release), else a binary search per concept. Cached per release.
    */
   conceptNodes(r: Release): Int32Array {
-    let out = this.conceptNodeCache.get(r);
-    if (!out) {
-      out = alignIds(r.conceptIds, this.ids);
-      this.conceptNodeCache.set(r, out);
-    }
-    return out;
+    return cached(this.conceptNodeCache, r, () => alignIds(r.conceptIds, this.ids));
   }
 
   /** For each node here, the node of the same id in `other`, or -1 (one merge). Cached. */
   nodesIn(other: HierarchyGraph): Int32Array {
-    let out = this.nodesInCache.get(other);
-    if (!out) {
-      out = alignIds(this.ids, other.ids);
-      this.nodesInCache.set(other, out);
-    }
-    return out;
+    return cached(this.nodesInCache, other, () => alignIds(this.ids, other.ids));
   }
 
   /** child id → parent ids (both in id order), for the children only: the Map form of a hierarchy. */
@@ -123,7 +99,7 @@ export class HierarchyGraph {
     ids.forEach((id, n) => node.set(id, n));
     const lists: number[][] = ids.map(() => []);
     for (const [child, list] of parents) {
-      const own = lists[node.get(child)!] ?? [];
+      const own = lists[node.get(child)!];
       for (const p of list) {
         const q = node.get(p)!;
         if (!own.includes(q)) own.push(q);
@@ -131,6 +107,12 @@ export class HierarchyGraph {
     }
     return fromLists(ids, lists);
   }
+}
+
+function cached<K extends object>(cache: WeakMap<K, Int32Array>, key: K, make: () => Int32Array): Int32Array {
+  let out = cache.get(key);
+  if (!out) cache.set(key, (out = make()));
+  return out;
 }
 
 /** The graph of sorted ids and, per node, its parent nodes (any order, no duplicates). */
@@ -151,7 +133,7 @@ function fromLists(ids: string[], lists: number[][]): HierarchyGraph {
  */
 export function alignIds(a: readonly string[], b: readonly string[]): Int32Array {
   const out = new Int32Array(a.length).fill(-1);
-  if (isSorted(a)) {
+  if (inStringOrder(a)) {
     let k = 0;
     for (let i = 0; i < a.length && k < b.length; i++) {
       const id = a[i];
@@ -160,21 +142,7 @@ export function alignIds(a: readonly string[], b: readonly string[]): Int32Array
     }
     return out;
   }
-  for (let i = 0; i < a.length; i++) {
-    const id = a[i];
-    let lo = 0;
-    let hi = b.length - 1;
-    while (lo <= hi) {
-      const mid = (lo + hi) >>> 1;
-      const v = b[mid];
-      if (v === id) {
-        out[i] = mid;
-        break;
-      }
-      if (v < id) lo = mid + 1;
-      else hi = mid - 1;
-    }
-  }
+  for (let i = 0; i < a.length; i++) out[i] = indexInSorted(b, a[i]);
   return out;
 }
 

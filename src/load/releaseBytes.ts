@@ -248,18 +248,7 @@ export class ReleaseBytes {
     // Ids in increasing string order (the canonical order, and any file sorted by id): a binary
     // search over the id strings, no encoding of the id. Checked once, on the first lookup.
     const ids = this.conceptIds;
-    if ((this.idsInStringOrder ??= inStringOrder(ids))) {
-      let lo = 0;
-      let hi = ids.length - 1;
-      while (lo <= hi) {
-        const mid = (lo + hi) >>> 1;
-        const v = ids[mid];
-        if (v === id) return mid;
-        if (v < id) lo = mid + 1;
-        else hi = mid - 1;
-      }
-      return -1;
-    }
+    if ((this.idsInStringOrder ??= inStringOrder(ids))) return indexInSorted(ids, id);
     const need = id.length * 3;
     if (scratch.length < need) scratch = Buffer.allocUnsafe(Math.max(need, scratch.length * 2));
     const len = scratch.write(id, 0, 'utf8');
@@ -269,9 +258,24 @@ export class ReleaseBytes {
 
 let scratch = Buffer.allocUnsafe(256);
 
-function inStringOrder(ids: readonly string[]): boolean {
+/** Are the ids in strictly increasing string (UTF-16 code unit) order? */
+export function inStringOrder(ids: readonly string[]): boolean {
   for (let c = 1; c < ids.length; c++) if (!(ids[c - 1] < ids[c])) return false;
   return true;
+}
+
+/** The index of `id` in ids (strictly increasing), or -1: a binary search. */
+export function indexInSorted(ids: readonly string[], id: string): number {
+  let lo = 0;
+  let hi = ids.length - 1;
+  while (lo <= hi) {
+    const mid = (lo + hi) >>> 1;
+    const v = ids[mid];
+    if (v === id) return mid;
+    if (v < id) lo = mid + 1;
+    else hi = mid - 1;
+  }
+  return -1;
 }
 
 const storage = new WeakMap<object, ReleaseBytes>();
