@@ -12,7 +12,7 @@
  * plain `parents` Map (tests, importers) gets its graph from `graphOf`, built once and cached.
  */
 import type { Hierarchy, Release } from './types.js';
-import { inStringOrder, indexInSorted } from './releaseBytes.js';
+import { alignIds, indexInSorted } from './releaseBytes.js';
 
 const cmpStrings = (a: string, b: string): number => (a < b ? -1 : a > b ? 1 : 0);
 
@@ -125,25 +125,6 @@ function fromLists(ids: string[], lists: number[][]): HierarchyGraph {
     parentNodes.set(sorted, parentStart[n]);
   }
   return new HierarchyGraph(ids, parentStart, parentNodes);
-}
-
-/**
- * For each id of `a`, the index of the same id in `b` (strictly increasing), or -1: a merge when
- * `a` is in order too, else a binary search per id.
- */
-export function alignIds(a: readonly string[], b: readonly string[]): Int32Array {
-  const out = new Int32Array(a.length).fill(-1);
-  if (inStringOrder(a)) {
-    let k = 0;
-    for (let i = 0; i < a.length && k < b.length; i++) {
-      const id = a[i];
-      while (k < b.length && b[k] < id) k++;
-      if (k < b.length && b[k] === id) out[i] = k;
-    }
-    return out;
-  }
-  for (let i = 0; i < a.length; i++) out[i] = indexInSorted(b, a[i]);
-  return out;
 }
 
 const built = new WeakMap<Hierarchy, HierarchyGraph>();

@@ -10,9 +10,9 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import { loadHierarchy } from '../../src/load/loadHierarchy.js';
-import { HierarchyGraph, alignIds, graphOf } from '../../src/load/hierarchyGraph.js';
+import { HierarchyGraph, graphOf } from '../../src/load/hierarchyGraph.js';
 import { clean } from '../../src/load/growable.js';
-import { hashBytes } from '../../src/load/releaseBytes.js';
+import { alignIds, hashBytes } from '../../src/load/releaseBytes.js';
 import { quoteValue } from '../../src/load/ledger.js';
 import { AncestorIndex, ancestorSetSimilarity, ancestorSimilarity } from '../../src/rescore/features.js';
 import type { Hierarchy } from '../../src/load/types.js';
