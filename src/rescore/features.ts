@@ -263,7 +263,9 @@ export class AncestorIndex {
   readonly graph: HierarchyGraph;
   /** Node → key (a node of the `keysIn` graph), when the keys are not the nodes themselves. */
   private readonly keyOf: Int32Array | undefined;
-  private readonly cache: (AncestorSet | undefined)[] = [];
+  /** Node → 1 + its set's place in `sets` (0: not walked yet); a dense list, not a sparse array of a million slots. */
+  private readonly setOf: Int32Array;
+  private readonly sets: AncestorSet[] = [];
   private readonly stamp: Int32Array;
   private walk = 0;
   private scratch = new Int32Array(64);
@@ -279,6 +281,7 @@ export class AncestorIndex {
     this.graph = graphOf(hierarchy);
     this.keyOf = keysIn && keysIn !== this.graph ? this.graph.nodesIn(keysIn) : undefined;
     this.stamp = new Int32Array(this.graph.nodeCount);
+    this.setOf = new Int32Array(this.graph.nodeCount);
   }
 
   /** The node of concept c of release r, or -1. */
@@ -292,8 +295,8 @@ export class AncestorIndex {
    */
   ofNode(n: number): AncestorSet {
     if (n < 0) return NO_ANCESTORS;
-    const cached = this.cache[n];
-    if (cached) return cached;
+    const at = this.setOf[n];
+    if (at !== 0) return this.sets[at - 1];
     const { parentStart, parentNodes } = this.graph;
     const stamp = this.stamp;
     const walk = ++this.walk;
@@ -319,7 +322,8 @@ export class AncestorIndex {
       if (from === to) break;
     }
     const set = count === 0 ? NO_ANCESTORS : this.store(count);
-    this.cache[n] = set;
+    this.sets.push(set);
+    this.setOf[n] = this.sets.length;
     return set;
   }
 
@@ -374,8 +378,8 @@ export class AncestorIndex {
   /** Does node n have any ancestor (a parent other than itself)? */
   hasAncestorsNode(n: number): boolean {
     if (n < 0) return false;
-    const cached = this.cache[n];
-    if (cached) return cached.nodes.length > 0;
+    const at = this.setOf[n];
+    if (at !== 0) return this.sets[at - 1].nodes.length > 0;
     const { parentStart, parentNodes } = this.graph;
     for (let k = parentStart[n]; k < parentStart[n + 1]; k++) if (parentNodes[k] !== n) return true;
     return false;
