@@ -108,22 +108,7 @@ export function applyCanonicalOrder(r: Release, bytes: ReleaseBytes, rebuildInde
   const termOrder = new Int32Array(m);
   for (let t = 0; t < m; t++) termOrder[fill[newOf[r.termConcept[t]]]++] = t;
   const cmp = termComparer(r, bytes);
-  for (let c = 0; c < n; c++) {
-    if (start[c + 1] - start[c] > 16) {
-      // A concept with many terms: a merge sort, not the insertion sort's n².
-      termOrder.subarray(start[c], start[c + 1]).set(Array.from(termOrder.subarray(start[c], start[c + 1])).sort(cmp));
-      continue;
-    }
-    for (let i = start[c] + 1; i < start[c + 1]; i++) {
-      const t = termOrder[i];
-      let j = i - 1;
-      while (j >= start[c] && cmp(termOrder[j], t) > 0) {
-        termOrder[j + 1] = termOrder[j];
-        j--;
-      }
-      termOrder[j + 1] = t;
-    }
-  }
+  for (let c = 0; c < n; c++) sortRange(termOrder, start[c], start[c + 1], cmp);
 
   // Concept columns (the id list is permuted in place: the byte storage holds the same array).
   const sortedIds = Array.from(conceptOrder, (c) => ids[c]);
@@ -174,7 +159,10 @@ function resetCaches(bytes: ReleaseBytes): void {
   bytes.idsInStringOrder = undefined;
 }
 
-/** Sort terms[s..e) (term numbers) by `cmp`, stably: insertion sort for a few, else Array's merge sort. */
+/**
+ * Sort terms[s..e) (term numbers) by `cmp`, stably: insertion sort for the usual few, Array's
+ * merge sort above 16 (a concept with many terms must not cost the insertion sort's n²).
+ */
 function sortRange(terms: Int32Array, s: number, e: number, cmp: (t: number, u: number) => number): void {
   if (e - s > 16) {
     terms.subarray(s, e).set(Array.from(terms.subarray(s, e)).sort(cmp));

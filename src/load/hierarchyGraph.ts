@@ -24,7 +24,6 @@ export class HierarchyGraph {
   readonly parentNodes: Int32Array;
   private readonly conceptNodeCache = new WeakMap<Release, Int32Array>();
   private readonly nodesInCache = new WeakMap<HierarchyGraph, Int32Array>();
-  private childCount = -1;
 
   constructor(ids: readonly string[], parentStart: Int32Array, parentNodes: Int32Array) {
     if (parentStart.length !== ids.length + 1) throw new RangeError(`HierarchyGraph: ${ids.length} ids need ${ids.length + 1} parent offsets, got ${parentStart.length}`);
@@ -35,16 +34,6 @@ export class HierarchyGraph {
 
   get nodeCount(): number {
     return this.ids.length;
-  }
-
-  /** Nodes with at least one parent (the children of the hierarchy; the entries of `toMap`). */
-  get children(): number {
-    if (this.childCount < 0) {
-      let n = 0;
-      for (let k = 0; k < this.ids.length; k++) if (this.parentStart[k + 1] > this.parentStart[k]) n++;
-      this.childCount = n;
-    }
-    return this.childCount;
   }
 
   /** The node of `id`, or -1 (binary search). */

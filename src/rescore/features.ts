@@ -259,7 +259,6 @@ const POOL = 1 << 16;
  * (`ancestors`, `hasAncestors`, `sameAncestors`, …) by a binary search of the id.
  */
 export class AncestorIndex {
-  readonly hierarchy: Hierarchy;
   readonly graph: HierarchyGraph;
   /** Node → key (a node of the `keysIn` graph), when the keys are not the nodes themselves. */
   private readonly keyOf: Int32Array | undefined;
@@ -277,7 +276,6 @@ export class AncestorIndex {
 
   /** `keysIn`: the graph whose nodes the ancestor sets are compared by (this one when not given). */
   constructor(hierarchy: Hierarchy, keysIn?: HierarchyGraph) {
-    this.hierarchy = hierarchy;
     this.graph = graphOf(hierarchy);
     this.keyOf = keysIn && keysIn !== this.graph ? this.graph.nodesIn(keysIn) : undefined;
     this.stamp = new Int32Array(this.graph.nodeCount);
