@@ -128,8 +128,14 @@ export function indexSource(release: Release): IndexSource {
   return { termCount: release.termCount, active, bytes: raw, text: (t) => termTextAt(release, t) };
 }
 
-/** Build an index (the work of the ConceptIndex constructor, and of the index thread). */
-export function buildIndexParts(src: IndexSource, onProgress?: (terms: number) => void): IndexParts {
+/**
+ * Build an index (the work of the ConceptIndex constructor, and of the index thread). `shared`:
+ * its typed arrays in SharedArrayBuffers, so that another thread can search the same index
+ * without a copy (indexThread.ts: the main thread takes part of a batch of searches).
+ */
+export function buildIndexParts(src: IndexSource, onProgress?: (terms: number) => void, shared = false): IndexParts {
+  const ints = (n: number) => (shared ? new Int32Array(new SharedArrayBuffer(4 * n)) : new Int32Array(n));
+  const floats = (n: number) => (shared ? new Float64Array(new SharedArrayBuffer(8 * n)) : new Float64Array(n));
   const wordIds = new Map<string, number>();
   const words: string[] = [];
   const wordId = (word: string): number => {
@@ -160,7 +166,7 @@ export function buildIndexParts(src: IndexSource, onProgress?: (terms: number) =
   // so they are the forward index (term → words) as they stand, and the term of a pair is known
   // from termStart without a second list.
   const pw = new GrowableInt32(1 << 16);
-  const termStart = new Int32Array(termCount + 1);
+  const termStart = ints(termCount + 1);
   let active = 0;
   const push = (w: number, first: number) => {
     for (let k = first; k < pw.length; k++) if (pw.data[k] === w) return;
@@ -191,17 +197,21 @@ export function buildIndexParts(src: IndexSource, onProgress?: (terms: number) =
   }
   const pairs = pw.length;
   termStart[termCount] = pairs;
-  const termWords = pw.finish();
+  let termWords: Int32Array;
+  if (shared) {
+    termWords = ints(pairs);
+    termWords.set(pw.data.subarray(0, pairs));
+  } else termWords = pw.finish();
   // Pass 2: postings (word → terms) as compressed sparse rows, terms ascending within a word.
   const nWords = words.length;
-  const start = new Int32Array(nWords + 1);
+  const start = ints(nWords + 1);
   for (let k = 0; k < pairs; k++) start[termWords[k] + 1]++;
   for (let w = 0; w < nWords; w++) start[w + 1] += start[w];
   const fill = start.slice(0, nWords);
-  const terms = new Int32Array(pairs);
-  const idfs = new Float64Array(nWords);
+  const terms = ints(pairs);
+  const idfs = floats(nWords);
   for (let w = 0; w < nWords; w++) idfs[w] = Math.log((active + 1) / (start[w + 1] - start[w] + 1)) + 1;
-  const termNorm = new Float64Array(termCount);
+  const termNorm = floats(termCount);
   for (let t = 0; t < termCount; t++) {
     let norm = 0;
     for (let k = termStart[t]; k < termStart[t + 1]; k++) {
@@ -255,11 +265,6 @@ export class ConceptIndex {
     this.termWords = p.termWords;
     this.maxPosting = options.maxPosting ?? 2000;
     this.scratch = new Float64Array(release.termCount);
-  }
-
-  /** The built index as parts (shared, not copied), e.g. to move it to another thread. */
-  parts(): IndexParts {
-    return { words: this.words, start: this.start, terms: this.terms, idfs: this.idfs, termNorm: this.termNorm, termStart: this.termStart, termWords: this.termWords };
   }
 
   /** Vocabulary words within `fuzzyMin` trigram-Dice of `word`, best first (not the word itself). */

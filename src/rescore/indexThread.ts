@@ -7,9 +7,14 @@
  * time overlaps the rest of the diff (docs/BENCHMARKS.md). The worker builds from the release's
  * indexSource (typed arrays and the loader's byte blocks; blocks of large files live in a
  * SharedArrayBuffer and are not copied) with the same function as the main thread
- * (buildIndexParts). It then answers, in order: batches of searches (`searchAhead`; the
- * retirement detector starts its batch before the other detectors run), and last the index
- * itself, its typed arrays transferred, when something here needs it (`get`; re-scoring does).
+ * (buildIndexParts), its typed arrays in shared memory, and answers that it is built with those
+ * arrays: from then on this thread can search the very same index without a copy. Batches of
+ * searches (`searchAhead`; the retirement detector starts its batch before the other detectors
+ * run) go to the worker, and when this thread asks for their hits before the worker is through,
+ * it searches the rest of the batch beside the worker instead of waiting: the two threads take
+ * the next queries in turn from a shared counter (indexServer.ts, searchClaimed). When something
+ * here needs the index itself (`get`; re-scoring does), it is the shared one, and the worker is
+ * stopped.
  * Same code, same data: the hits and the index are those of the main thread;
  * tests/rescore/indexThread.test.ts compares them.
  *
@@ -24,6 +29,7 @@ import { fileURLToPath } from 'node:url';
 import type { Release } from '../load/types.js';
 import { ConceptIndex, indexSource, type ConceptIndexOptions, type IndexHit, type IndexParts } from './conceptIndex.js';
 import { startAnswering, type WorkerAnswers } from './workerAnswers.js';
+import { searchClaimed } from './indexServer.js';
 import type { MessagePort } from 'node:worker_threads';
 
 /** One nearest-concept search: the texts of a concept, as ConceptIndex.search takes them. */
@@ -34,8 +40,10 @@ export interface SearchQuery {
 }
 
 /** Messages to the worker, and its answers (in the order asked; the first says it has built). */
-export type IndexRequest = { searches: SearchQuery[] } | { parts: true };
-export type IndexAnswer = { built: true } | { hits: IndexHit[][] } | { parts: IndexParts } | { error: string };
+/** A batch of searches, with its claim counter (the next query not yet taken by either thread). */
+export type IndexRequest = { searches: SearchQuery[]; claim: Int32Array };
+/** Answers: built (with the index's shared parts), the hits of the queries the worker took (`at`: their positions in the batch), or an error. */
+export type IndexAnswer = { built: true; parts: IndexParts } | { hits: IndexHit[][]; at: number[] } | { error: string };
 
 export interface IndexHandle {
   /** The index on this thread (moved here from the worker, or built here, on first need). */
@@ -54,8 +62,11 @@ const STALL_SECONDS = 30;
 /** The same, for an index built by the worker that loaded the release (load/releaseThread.ts). */
 export const INDEX_STALL_SECONDS = STALL_SECONDS;
 
-/** Indexes built by a worker so far (tests check that the thread was used, not the fallback). */
-export const threadStats = { received: 0, searchedThere: 0 };
+/**
+ * Indexes built by a worker and taken here so far, and queries of batches searched on the worker
+ * and here (tests check that the thread was used, not the fallback).
+ */
+export const threadStats = { received: 0, searchedThere: 0, searchedHere: 0 };
 
 export interface IndexThreadOptions extends ConceptIndexOptions {
   /** Build in a worker thread: true always (when possible), false never; default from THREAD_FROM_TERMS. */
@@ -121,8 +132,10 @@ export function takeConceptIndex(release: Release): IndexHandle | undefined {
 
 /** The handle over a worker that builds (or built) the index of `release` and answers on `port`. */
 function indexHandle(release: Release, indexOptions: ConceptIndexOptions, answers: WorkerAnswers<IndexAnswer>, port: MessagePort): IndexHandle {
+  /** The index on this thread: over the worker's shared parts once it has built them, else built here. */
   let index: ConceptIndex | undefined;
-  const here = () => (index ??= new ConceptIndex(release, indexOptions));
+  let shared: IndexParts | undefined;
+  const here = () => (index ??= new ConceptIndex(release, indexOptions, shared));
   const local: IndexHandle = {
     get: here,
     searchAhead: (queries) => {
@@ -131,44 +144,58 @@ function indexHandle(release: Release, indexOptions: ConceptIndexOptions, answer
     },
   };
   const next = () => answers.next();
-  const stop = () => answers.stop();
   let built: boolean | undefined;
-  const waitBuilt = (): boolean => (built ??= next() !== undefined);
+  const waitBuilt = (): boolean => {
+    if (built === undefined) {
+      const a = next();
+      built = a !== undefined && 'built' in a;
+      if (a && 'built' in a) shared = a.parts;
+    }
+    return built;
+  };
   /** Searches asked of the worker whose hits are not yet read, in order. */
-  const pending: { hits?: IndexHit[][]; queries: SearchQuery[] }[] = [];
-  /** Read the hits of every pending search (from the worker, or here once it has failed). */
+  const pending: { hits?: IndexHit[][]; queries: SearchQuery[]; claim: Int32Array }[] = [];
+  /**
+   * Read the hits of every pending batch: search here what the worker has not taken yet, then
+   * take the worker's answer; what is still missing (the worker failed) is searched here too.
+   */
   const drain = () => {
     const ok = waitBuilt();
     for (const p of pending) {
       if (p.hits !== undefined) continue;
+      const hits: (IndexHit[] | undefined)[] = new Array(p.queries.length);
+      if (ok && answers.alive) {
+        threadStats.searchedHere += searchClaimed(here(), p.queries, p.claim, (i, h) => {
+          hits[i] = h;
+        });
+      }
       const a = ok ? next() : undefined;
       if (a && 'hits' in a) {
-        p.hits = a.hits;
-        threadStats.searchedThere += p.queries.length;
-      } else p.hits = runHere(here, p.queries);
+        for (let k = 0; k < a.at.length; k++) hits[a.at[k]] = a.hits[k];
+        threadStats.searchedThere += a.at.length;
+      }
+      for (let i = 0; i < hits.length; i++) {
+        const q = p.queries[i];
+        hits[i] ??= here().search(q.texts, q.limit, q.skipConcept);
+      }
+      p.hits = hits as IndexHit[][];
     }
     pending.length = 0;
   };
   const handle: IndexHandle = {
     get() {
-      if (index !== undefined) return index;
-      drain();
-      if (waitBuilt() && answers.alive) {
-        port.postMessage({ parts: true } satisfies IndexRequest);
-        const a = next();
-        if (a && 'parts' in a) {
-          index = new ConceptIndex(release, indexOptions, a.parts);
-          threadStats.received++;
-        }
+      if (answers.alive) {
+        drain();
+        if (waitBuilt() && shared !== undefined) threadStats.received++;
+        answers.stop();
       }
-      stop();
       return here();
     },
     searchAhead(queries) {
-      if (index !== undefined || !answers.alive) return local.searchAhead(queries);
-      const p: { hits?: IndexHit[][]; queries: SearchQuery[] } = { queries };
+      if (!answers.alive) return local.searchAhead(queries);
+      const p: (typeof pending)[number] = { queries, claim: new Int32Array(new SharedArrayBuffer(4)) };
       pending.push(p);
-      port.postMessage({ searches: queries } satisfies IndexRequest);
+      port.postMessage({ searches: queries, claim: p.claim } satisfies IndexRequest);
       return () => {
         if (p.hits === undefined) drain();
         return p.hits!;

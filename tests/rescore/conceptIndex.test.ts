@@ -4,7 +4,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import { loadRelease } from '../../src/load/index.js';
-import { ConceptIndex } from '../../src/rescore/conceptIndex.js';
+import { ConceptIndex, buildIndexParts, indexSource } from '../../src/rescore/conceptIndex.js';
+import { CLAIM_CHUNK, searchClaimed } from '../../src/rescore/indexServer.js';
 import { tempDir, tsv, writeFile } from '../helpers/files.js';
 
 async function release(rows: string[][]) {
@@ -37,5 +38,43 @@ describe('ConceptIndex.search', () => {
     expect(hits[0].score).toBe(1);
     // The rest share both words too (the intersection), none only one of them.
     for (const h of hits.slice(1)) expect(Number(r.conceptIds[h.concept].slice(1))).toBeGreaterThanOrEqual(800);
+  });
+});
+
+describe('an index in shared memory, searched by two threads', () => {
+  it('buildIndexParts with shared arrays builds the same index, every array in a SharedArrayBuffer', async () => {
+    const rows: string[][] = [];
+    for (let k = 0; k < 300; k++) rows.push([id(k), `${['acute', 'chronic', 'renal', 'hepatic'][k % 4]} ${['failure', 'injury', 'cyst'][k % 3]} ${k % 7 === 0 ? 'of the left side' : `type ${k % 11}`}`, 'preferred']);
+    const r = await release(rows);
+    const plain = buildIndexParts(indexSource(r));
+    const shared = buildIndexParts(indexSource(r), undefined, true);
+    expect(shared.words).toEqual(plain.words);
+    for (const key of ['start', 'terms', 'idfs', 'termNorm', 'termStart', 'termWords'] as const) {
+      expect(shared[key].buffer).toBeInstanceOf(SharedArrayBuffer);
+      expect(plain[key].buffer).toBeInstanceOf(ArrayBuffer);
+      expect(Array.from(shared[key])).toEqual(Array.from(plain[key]));
+    }
+  });
+
+  it('searchClaimed searches the queries not yet claimed, a chunk at a time, each once, with the hits of a plain search', async () => {
+    const rows: string[][] = [];
+    for (let k = 0; k < 200; k++) rows.push([id(k), `${['acute', 'chronic'][k % 2]} ${['failure', 'injury', 'cyst', 'mass', 'pain'][k % 5]} ${k}`, 'preferred']);
+    const r = await release(rows);
+    const index = new ConceptIndex(r, {}, buildIndexParts(indexSource(r), undefined, true));
+    const queries = Array.from({ length: 45 }, (_, k) => ({ texts: [`${['acute', 'chronic'][k % 2]} ${['failure', 'injury', 'cyst'][k % 3]}`, `mass ${k}`], limit: 4, skipConcept: k % 3 === 0 ? k : -1 }));
+    // Another thread took the first two chunks already.
+    const claim = new Int32Array(new SharedArrayBuffer(4));
+    claim[0] = 2 * CLAIM_CHUNK;
+    const found = new Map<number, unknown>();
+    const done = searchClaimed(index, queries, claim, (at, hits) => {
+      expect(found.has(at)).toBe(false);
+      found.set(at, hits);
+    });
+    expect(done).toBe(queries.length - 2 * CLAIM_CHUNK);
+    expect([...found.keys()]).toEqual(Array.from({ length: done }, (_, k) => 2 * CLAIM_CHUNK + k));
+    for (const [at, hits] of found) expect(hits).toEqual(new ConceptIndex(r).search(queries[at].texts, queries[at].limit, queries[at].skipConcept));
+    expect(claim[0]).toBeGreaterThanOrEqual(queries.length);
+    // Nothing is left for a second call.
+    expect(searchClaimed(index, queries, claim, () => { throw new Error('searched twice'); })).toBe(0);
   });
 });
