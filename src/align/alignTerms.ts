@@ -43,29 +43,65 @@ function langOf(r: Release, t: number): string {
 }
 
 /**
- * Same status, category and active term list (as a multiset of text+type+language). Terms are
- * compared in file order first, text by its bytes (`sameText`, no string made); only a concept
- * whose terms differ or come in another order has its texts decoded.
+ * One code per distinct string of two releases' value tables (categories, term types,
+ * languages), so that a value of one release is compared with one of the other as two integers:
+ * code[i + 1] is the code of table[i], code[0] that of no value (index -1, the empty string).
  */
-function sameConcept(a: Release, ca: number, b: Release, cb: number, sameText: (t: number, u: number) => boolean): boolean {
+function sharedCodes(a: readonly string[], b: readonly string[]): [Int32Array, Int32Array] {
+  const ids = new Map<string, number>([['', 0]]);
+  const codes = (table: readonly string[]) => {
+    const out = new Int32Array(table.length + 1);
+    for (let i = 0; i < table.length; i++) {
+      let id = ids.get(table[i]);
+      if (id === undefined) ids.set(table[i], (id = ids.size));
+      out[i + 1] = id;
+    }
+    return out;
+  };
+  return [codes(a), codes(b)];
+}
+
+/** The codes of two releases' categories, term types and languages (sharedCodes). */
+interface ValueCodes {
+  catA: Int32Array; catB: Int32Array; typeA: Int32Array; typeB: Int32Array; langA: Int32Array; langB: Int32Array;
+}
+
+function valueCodes(a: Release, b: Release): ValueCodes {
+  const [catA, catB] = sharedCodes(a.categories, b.categories);
+  const [typeA, typeB] = sharedCodes(a.termTypes, b.termTypes);
+  const [langA, langB] = sharedCodes(a.languages, b.languages);
+  return { catA, catB, typeA, typeB, langA, langB };
+}
+
+/**
+ * Same status, category and active term list (as a multiset of text+type+language). Terms are
+ * compared in file order first, text by its bytes (`sameText`, no string made), values by their
+ * codes (valueCodes); only a concept whose terms differ or come in another order has its texts
+ * decoded.
+ */
+function sameConcept(a: Release, ca: number, b: Release, cb: number, sameText: (t: number, u: number) => boolean, v: ValueCodes): boolean {
   if (a.conceptStatus[ca] !== b.conceptStatus[cb]) return false;
-  if (categoryOf(a, ca) !== categoryOf(b, cb)) return false;
+  if (v.catA[a.conceptCategory[ca] + 1] !== v.catB[b.conceptCategory[cb] + 1]) return false;
   // The usual case first, with no list made: the active terms of both, walked in step, agree.
   // (Two lists per concept pair were 2 M arrays for a 1 M-concept release, and their collection.)
   let i = a.conceptTermStart[ca];
   const ie = a.conceptTermStart[ca + 1];
   let j = b.conceptTermStart[cb];
   const je = b.conceptTermStart[cb + 1];
+  const aTerms = a.conceptTerms;
+  const bTerms = b.conceptTerms;
+  const aStatus = a.termStatus;
+  const bStatus = b.termStatus;
   for (;;) {
-    while (i < ie && a.termStatus[a.conceptTerms[i]] !== ACTIVE) i++;
-    while (j < je && b.termStatus[b.conceptTerms[j]] !== ACTIVE) j++;
+    while (i < ie && aStatus[aTerms[i]] !== ACTIVE) i++;
+    while (j < je && bStatus[bTerms[j]] !== ACTIVE) j++;
     if (i === ie || j === je) {
       if (i === ie && j === je) return true;
       break;
     }
-    const t = a.conceptTerms[i];
-    const u = b.conceptTerms[j];
-    if (a.termTypes[a.termType[t]] !== b.termTypes[b.termType[u]] || langOf(a, t) !== langOf(b, u) || !sameText(t, u)) break;
+    const t = aTerms[i];
+    const u = bTerms[j];
+    if (v.typeA[a.termType[t] + 1] !== v.typeB[b.termType[u] + 1] || v.langA[a.termLanguage[t] + 1] !== v.langB[b.termLanguage[u] + 1] || !sameText(t, u)) break;
     i++;
     j++;
   }
@@ -76,7 +112,7 @@ function sameConcept(a: Release, ca: number, b: Release, cb: number, sameText: (
   for (let i = 0; i < ta.length; i++) {
     const t = ta[i];
     const u = tb[i];
-    if (a.termTypes[a.termType[t]] !== b.termTypes[b.termType[u]] || langOf(a, t) !== langOf(b, u) || !sameText(t, u)) { inOrder = false; break; }
+    if (v.typeA[a.termType[t] + 1] !== v.typeB[b.termType[u] + 1] || v.langA[a.termLanguage[t] + 1] !== v.langB[b.termLanguage[u] + 1] || !sameText(t, u)) { inOrder = false; break; }
   }
   if (inOrder) return true;
   const key = (r: Release, t: number) => `${r.termTypes[r.termType[t]]}\u0001${langOf(r, t)}\u0001${termTextAt(r, t)}`;
@@ -164,6 +200,7 @@ export function alignTerms(oldR: Release, newR: Release, options: AlignOptions =
   let unchanged = 0;
   const sameIdOf = matchConceptIds(oldR, newR);
   const sameText = termTextComparer(oldR, newR);
+  const codes = valueCodes(oldR, newR);
   for (let c = 0; c < oldR.conceptCount; c++) {
     const n = sameIdOf[c];
     if (n < 0) {
@@ -172,7 +209,7 @@ export function alignTerms(oldR: Release, newR: Release, options: AlignOptions =
     }
     sameId[c] = n;
     newHasOld[n] = 1;
-    if (sameConcept(oldR, c, newR, n, sameText)) unchanged++;
+    if (sameConcept(oldR, c, newR, n, sameText, codes)) unchanged++;
     else {
       oldFrontier.push(c);
       newFrontier.push(n);

@@ -1,7 +1,8 @@
 /**
  * The term_id level of alignTerms (align/alignTerms.ts): the publisher's term identifiers link a
  * term across releases whatever its text, found through the ids' bytes when both releases keep
- * them, else through strings; the links must be the same either way.
+ * them, else through strings; the links must be the same either way. And the frontier: which
+ * concepts are unchanged when the two releases number their values differently.
  */
 import { describe, expect, it } from 'vitest';
 import { alignTerms } from '../../src/align/alignTerms.js';
@@ -59,5 +60,46 @@ describe('alignTerms by term_id', () => {
     const next = await load([['C2', 'x', 'preferred', 'T1'], ['C3', 'y', 'preferred', 'T1'], ['C4', 'z', 'preferred', '']], 'new.tsv');
     expect(links(old, next)).toEqual(['a → y (term_id)']);
     expect(links({ ...old }, { ...next })).toEqual(['a → y (term_id)']);
+  });
+});
+
+describe('the unchanged concepts (the frontier left out)', () => {
+  const H2 = ['concept_id', 'term', 'term_type', 'category', 'language'];
+  const load2 = (rows: string[][], name: string) => loadRelease(writeFile(tempDir(), name, tsv([H2, ...rows])), { order: 'canonical' });
+
+  it('compares categories, term types and languages by value, whatever their order in each release', async () => {
+    // The new release lists its values in another order (categories, types and languages are
+    // numbered as first seen), so equal values have other indexes in the two releases.
+    const old = await load2([
+      ['C1', 'Anemia', 'preferred', 'disorder', 'en'],
+      ['C1', 'Anaemia', 'synonym', 'disorder', 'en-GB'],
+      ['C2', 'Hemoglobin', 'preferred', 'substance', 'en'],
+      ['C3', 'Biopsy', 'preferred', 'procedure', 'en'],
+      ['C4', 'Fever', 'preferred', 'finding', 'en'],
+      ['C4', 'Pyrexia', 'synonym', 'finding', ''],
+      ['C5', 'Cough', 'preferred', 'finding', 'en'],
+      ['C6', 'Rash', 'preferred', 'finding', 'en'],
+      ['C6', 'Exanthem', 'synonym', 'finding', 'en'],
+      ['C7', 'Nausea', 'preferred', 'finding', 'en-GB'],
+    ], 'old.tsv');
+    const next = await load2([
+      ['C7', 'Nausea', 'preferred', 'finding', 'en-GB'],
+      ['C3', 'Biopsy', 'preferred', 'procedure', 'en'],
+      ['C2', 'Hemoglobin', 'preferred', 'substance', 'en-GB'], // language changed
+      ['C1', 'Anemia', 'preferred', 'disorder', 'en'],
+      ['C1', 'Anaemia', 'synonym', 'disorder', 'en-GB'],
+      ['C4', 'Fever', 'preferred', 'finding', 'en'],
+      ['C4', 'Pyrexia', 'synonym', 'finding', 'en'], // no language before
+      ['C5', 'Cough', 'preferred', 'disorder', 'en'], // category changed
+      ['C6', 'Rash', 'preferred', 'finding', 'en'],
+      ['C6', 'Exanthem', 'abbreviation', 'finding', 'en'], // term type changed
+    ], 'new.tsv');
+    expect(old.categories).not.toEqual(next.categories);
+    expect(old.languages).not.toEqual(next.languages);
+    const a = alignTerms(old, next);
+    const ids = (r: Release, cs: readonly number[]) => cs.map((c) => r.conceptIds[c]).sort();
+    expect(ids(old, a.oldFrontier)).toEqual(['C2', 'C4', 'C5', 'C6']);
+    expect(ids(next, a.newFrontier)).toEqual(['C2', 'C4', 'C5', 'C6']);
+    expect(a.unchangedConcepts).toBe(3);
   });
 });
