@@ -9,6 +9,13 @@
  * training and the other mappings meanwhile. Same code, same strings: the same floats;
  * tests/rescore/lexicalThread.test.ts compares the whole re-scoring with and without the worker.
  *
+ * The worker takes the batches in the order posted. When the caller asks for an answer the
+ * worker has not given yet, it does not wait while batches are left that the worker has not
+ * started: it computes the last of them itself (the same function, lexicalBatch), so the two
+ * threads work through the queue from either end. Each batch carries a claim in shared memory
+ * that the thread starting it sets first (compare-and-exchange), so no batch is computed twice;
+ * the worker answers a batch claimed here with `skipped`, to keep its answers in order.
+ *
  * When no compiled worker is there (runs from the TypeScript sources), when the jobs are few, or
  * when the worker fails or stalls, the caller computes the features itself (`take` answers
  * undefined).
@@ -17,6 +24,7 @@ import { existsSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import type { DocumentFrequencies } from '../text/tfidf.js';
 import { startAnswering } from './workerAnswers.js';
+import { LEXICAL_COUNT, lexicalOfTerms, termEntry, textForms, type TermEntry } from './features.js';
 
 /** One batch of jobs: job i compares labels[i] with terms[termStart[i] .. termStart[i+1]). */
 export interface LexicalBatch {
@@ -25,26 +33,55 @@ export interface LexicalBatch {
   terms: string[];
 }
 
+/** A batch as posted: with its claim (0 free, WORKER or HERE: the thread that computes it). */
+export interface PostedBatch extends LexicalBatch {
+  claim: Int32Array;
+}
+
+/** Claim values: which thread computes a batch. */
+export const WORKER = 1;
+const HERE = 2;
+
 /** The answer to one batch: features (LEXICAL_COUNT per job) and the label's forms (nfc, folded, lexical per job). */
 export interface LexicalResult {
   features: Float64Array;
   forms: string[];
 }
 
-export type LexicalAnswer = LexicalResult | { error: string };
+export type LexicalAnswer = LexicalResult | { skipped: true } | { error: string };
+
+/** The answer to a batch, computed on this thread: what the worker computes for it. */
+export function lexicalBatch(b: LexicalBatch, df: DocumentFrequencies, onJob?: (i: number) => void): LexicalResult {
+  const n = b.labels.length;
+  const features = new Float64Array(n * LEXICAL_COUNT);
+  const forms: string[] = new Array(n * 3);
+  for (let i = 0; i < n; i++) {
+    onJob?.(i);
+    const label = textForms(b.labels[i]);
+    const entries: TermEntry[] = [];
+    for (let k = b.termStart[i]; k < b.termStart[i + 1]; k++) entries.push(termEntry(k, b.terms[k]));
+    lexicalOfTerms(label, entries, df, features, i * LEXICAL_COUNT);
+    forms[3 * i] = label.nfc;
+    forms[3 * i + 1] = label.folded;
+    forms[3 * i + 2] = label.lexical;
+  }
+  return { features, forms };
+}
 
 /** Fewer jobs than this are computed on the calling thread (a worker costs about 50 ms to start). */
 export const THREAD_FROM_JOBS = 20_000;
 const STALL_SECONDS = 30;
 
-/** Batches answered by a worker so far (tests check that the thread was used, not the fallback). */
-export const threadStats = { batches: 0 };
+/** Batches answered by a worker so far, and computed here from the end of the queue (tests check that the thread was used, not the fallback). */
+export const threadStats = { batches: 0, takenHere: 0 };
 
 export interface LexicalThread {
   /** Send a batch; returns its number (batches are answered in order). */
   post(batch: LexicalBatch): number;
-  /** The answer to batch `k`, waited for; undefined when the worker could not answer (compute it here). */
+  /** The answer to batch `k`, waited for or computed here; undefined when the worker could not answer (compute it here). */
   take(k: number): LexicalResult | undefined;
+  /** Answers the worker has given so far (computed or skipped), read or not. */
+  answered(): number;
   /** Stop the worker. */
   close(): void;
 }
@@ -65,24 +102,52 @@ export function startLexicalThread(df: DocumentFrequencies, jobs: number, thread
   const started = startAnswering<LexicalAnswer>(script, { df: df.toParts() }, [], STALL_SECONDS);
   if (!started) return undefined;
   const { answers, port } = started;
-  let posted = 0;
-  /** Answers read so far, by batch number (a failed one is undefined). */
+  /** Batches posted and not yet answered (kept to be computed here if the worker has not started them). */
+  const posted: (PostedBatch | undefined)[] = [];
+  /** Answers by batch number: read from the worker, or computed here (a failed one is undefined). */
   const got: (LexicalResult | undefined)[] = [];
+  /** Answers read from the worker so far (they come in batch order). */
+  let read = 0;
+  const readNext = () => {
+    const a = answers.next();
+    const k = read++;
+    if (a && 'features' in a) {
+      got[k] = a;
+      threadStats.batches++;
+    }
+    posted[k] = undefined;
+  };
+  /** Compute here the last batch the worker has not started; false when there is none. */
+  const takeLast = (): boolean => {
+    for (let j = posted.length - 1; j >= read; j--) {
+      const b = posted[j];
+      if (b === undefined || Atomics.compareExchange(b.claim, 0, 0, HERE) !== 0) continue;
+      got[j] = lexicalBatch(b, df);
+      posted[j] = undefined;
+      threadStats.takenHere++;
+      return true;
+    }
+    return false;
+  };
   return {
     post(batch) {
-      if (answers.alive) port.postMessage(batch, [batch.termStart.buffer as ArrayBuffer]);
-      return posted++;
+      const k = posted.length;
+      const p: PostedBatch = { ...batch, claim: new Int32Array(new SharedArrayBuffer(4)) };
+      posted.push(p);
+      if (answers.alive) port.postMessage(p);
+      return k;
     },
     take(k) {
-      while (got.length <= k && answers.alive) {
-        const a = answers.next() as LexicalResult | undefined;
-        got.push(a);
-        if (a) threadStats.batches++;
+      while (read <= k && got[k] === undefined && answers.alive) {
+        // The worker's answers that are there are read first; then, rather than wait, a batch
+        // it has not started is computed here, the last one first.
+        if (answers.posted() > read || !takeLast()) readNext();
       }
       const a = got[k];
       got[k] = undefined;
       return a;
     },
+    answered: () => answers.posted(),
     close: () => answers.stop(),
   };
 }

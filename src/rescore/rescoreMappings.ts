@@ -343,7 +343,8 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     return hits;
   };
 
-  // With a worker (lexicalThread.ts) the lexical work goes there, in batches answered in order,
+  // With a worker (lexicalThread.ts) the lexical work goes there, in batches answered in order
+  // (a batch the worker has not started when this thread needs an answer may be computed here),
   // while this thread trains the scorer and assesses:
   // 1. for each mapping whose target is outside the changed frontier (most of them), the
   //    label's forms and its features against the target (the "jobs");

@@ -48,6 +48,11 @@ export class WorkerAnswers<T extends object> {
     return this.open;
   }
 
+  /** Answers the worker has posted so far (read or not). */
+  posted(): number {
+    return Atomics.load(this.state, POSTED);
+  }
+
   /** The next answer; undefined once the worker failed (an `error` answer) or stalled, after which it is stopped. */
   next(): T | undefined {
     if (!this.open) return undefined;
