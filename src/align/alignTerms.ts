@@ -105,16 +105,10 @@ function sameConcept(a: Release, ca: number, b: Release, cb: number, sameText: (
     i++;
     j++;
   }
+  // The walk stopped at a difference in order: the same terms may still come in another order.
   const ta = activeTerms(a, ca);
   const tb = activeTerms(b, cb);
   if (ta.length !== tb.length) return false;
-  let inOrder = true;
-  for (let i = 0; i < ta.length; i++) {
-    const t = ta[i];
-    const u = tb[i];
-    if (v.typeA[a.termType[t] + 1] !== v.typeB[b.termType[u] + 1] || v.langA[a.termLanguage[t] + 1] !== v.langB[b.termLanguage[u] + 1] || !sameText(t, u)) { inOrder = false; break; }
-  }
-  if (inOrder) return true;
   const key = (r: Release, t: number) => `${r.termTypes[r.termType[t]]}\u0001${langOf(r, t)}\u0001${termTextAt(r, t)}`;
   const ka = ta.map((t) => key(a, t)).sort();
   const kb = tb.map((t) => key(b, t)).sort();

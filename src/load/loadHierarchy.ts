@@ -185,8 +185,7 @@ export function buildGraph(strings: string[], edges: { child: Int32Array; parent
       const sortedLines = idx.map((i) => lines[i]);
       nodes.set(sortedNodes, s);
       lines.set(sortedLines, s);
-    }
-    for (let i = s + 1; i < end && end - s <= 16; i++) {
+    } else for (let i = s + 1; i < end; i++) {
       const v = nodes[i];
       const l = lines[i];
       let j = i - 1;

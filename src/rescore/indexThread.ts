@@ -39,14 +39,13 @@ export interface SearchQuery {
   skipConcept: number;
 }
 
-/** Messages to the worker, and its answers (in the order asked; the first says it has built). */
-/** A batch of searches, with its claim counter (the next query not yet taken by either thread). */
+/** To the worker: a batch of searches, with its claim counter (the next query not yet taken by either thread). */
 export type IndexRequest = { searches: SearchQuery[]; claim: Int32Array };
-/** Answers: built (with the index's shared parts), the hits of the queries the worker took (`at`: their positions in the batch), or an error. */
+/** Its answers, in the order asked (the first says it has built): built (with the index's shared parts), the hits of the queries the worker took (`at`: their positions in the batch), or an error. */
 export type IndexAnswer = { built: true; parts: IndexParts } | { hits: IndexHit[][]; at: number[] } | { error: string };
 
 export interface IndexHandle {
-  /** The index on this thread (moved here from the worker, or built here, on first need). */
+  /** The index on this thread (the worker's, in shared memory, or built here, on first need). */
   get(): ConceptIndex;
   /**
    * Start the searches; the function returned gives their hits, in order. With a worker, they

@@ -305,13 +305,8 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   const hasAncestors = (n: number) => (n === hasNode ? has : ((hasNode = n), (has = oldAnc!.hasAncestorsNode(n))));
   const selfScore = (lex: Float64Array, cOld: number, cNew?: number): number => {
     x.set(lex);
-    // contextFeatures of the two categories, ancestors aside (set below), without making contexts.
-    const ia = oldR.conceptCategory[cOld];
-    const a = ia < 0 ? null : oldR.categories[ia];
-    const ib = cNew === undefined ? -2 : newR.conceptCategory[cNew];
-    const b = ib === -2 ? a : ib < 0 ? null : newR.categories[ib];
-    x[LEXICAL_COUNT] = x[LEXICAL_COUNT + 1] = x[LEXICAL_COUNT + 2] = x[LEXICAL_COUNT + 3] = 0;
-    if (a !== null && b !== null) x[a === b ? LEXICAL_COUNT : LEXICAL_COUNT + 1] = 1;
+    const category = conceptContext(oldR, cOld).category;
+    contextFeatures({ category, ancestors: null }, { category: cNew === undefined ? category : conceptContext(newR, cNew).category, ancestors: null }, x, LEXICAL_COUNT);
     const anc = cNew === undefined ? oldAnc : newAnc;
     if (oldAnc && anc) {
       // The target's node in each hierarchy (the same id: cNew is the old concept's id match).
