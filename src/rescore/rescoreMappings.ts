@@ -208,6 +208,38 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   targets.forEach((t, i) => {
     if (t.cOld !== undefined && t.cNew !== undefined && isActive(oldR, t.cOld) && !ctx.olds.has(t.cOld) && !ctx.news.has(t.cNew)) jobOf[i] = jobs++;
   });
+  const thread = startLexicalThread(df, jobs, options.thread);
+  const newBatch = (): LexicalBatch => ({ labels: [], termStart: new Int32Array(LEXICAL_BATCH + 1), terms: [] });
+  let batch = newBatch();
+  /** lexCache slots (see slotOf) of each posted batch of 2 or 3, beside batch.labels (undefined for a batch of jobs). */
+  const batchSlots: (number[] | undefined)[] = [];
+  const batchLabels: (string[] | undefined)[] = [];
+  let slots: number[] = [];
+  const post = () => {
+    if (batch.labels.length === 0) return;
+    thread!.post({ ...batch, termStart: batch.termStart.slice(0, batch.labels.length + 1) });
+    batchSlots.push(slots.length ? slots : undefined);
+    batchLabels.push(slots.length ? batch.labels : undefined);
+    batch = newBatch();
+    slots = [];
+  };
+  const push = (text: string, r: Release, c: number) => {
+    batch.labels.push(text);
+    for (const term of activeTermsOf(r, c)) batch.terms.push(termTextAt(r, term));
+    batch.termStart[batch.labels.length] = batch.terms.length;
+  };
+  // The jobs go to the worker first, so that it starts on them while this thread prepares the rest.
+  let jobBatches = 0;
+  if (thread) {
+    targets.forEach((t, i) => {
+      if (jobOf[i] < 0) return;
+      push(t.labelText, oldR, t.cOld!);
+      if (batch.labels.length === LEXICAL_BATCH) post();
+    });
+    post();
+    jobBatches = batchSlots.length;
+  }
+
   // The old target's ancestors are compared with a new candidate's by the new hierarchy's nodes.
   const oldAnc = oldH ? new AncestorIndex(oldH, newH && newH !== oldH ? graphOf(newH) : undefined) : undefined;
   const newAnc = newH ? (newH === oldH ? oldAnc : new AncestorIndex(newH)) : undefined;
@@ -226,18 +258,23 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   }
 
   // Active terms of the new frontier by folded form and lexical key: concepts that now hold a label's text.
-  const frontierText = new Map<string, number[]>();
+  const frontierFolded = new Map<string, number[]>();
+  const frontierLexical = new Map<string, number[]>();
+  const holding = (map: Map<string, number[]>, key: string, n: number) => {
+    const list = map.get(key);
+    if (!list) map.set(key, [n]);
+    else if (!list.includes(n)) list.push(n);
+  };
   for (const node of ctx.news.values()) {
     if (!node.active) continue;
     for (const t of node.terms) {
       const folded = foldTerm(termTextAt(newR, t));
-      for (const key of [`f${folded}`, `l${lexicalKeyOfFolded(folded)}`]) {
-        const list = frontierText.get(key);
-        if (!list) frontierText.set(key, [node.n]);
-        else if (!list.includes(node.n)) list.push(node.n);
-      }
+      holding(frontierFolded, folded, node.n);
+      holding(frontierLexical, lexicalKeyOfFolded(folded), node.n);
     }
   }
+  /** Frontier concepts holding the label's folded form, then those holding its lexical key. */
+  const frontierHolding = (label: TextForms) => [frontierFolded.get(label.folded), frontierLexical.get(label.lexical)];
 
   // Caches.
   const labelCache = new Map<string, TextForms>();
@@ -249,7 +286,20 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     }
     return f;
   };
-  const lexCache = new Map<string, Float64Array>();
+  /**
+   * Lexical features by label text, then by concept and release (slotOf); null: asked of the
+   * worker, not answered yet. (Keyed in two steps, not by one string made of both: the label's
+   * string keeps its hash, where a new key string had to be built and hashed at each lookup.)
+   */
+  const lexCache = new Map<string, Map<number, Float64Array | null>>();
+  /** The lexCache slot of concept c of release r: c in the old release, -1 - c in the new one. */
+  const slotOf = (r: Release, c: number) => (r === oldR ? c : -1 - c);
+  const cached = (text: string, slot: number) => lexCache.get(text)?.get(slot);
+  const cache = (text: string, slot: number, v: Float64Array | null) => {
+    const byConcept = lexCache.get(text);
+    if (byConcept) byConcept.set(slot, v);
+    else lexCache.set(text, new Map([[slot, v]]));
+  };
   // A concept outside the changed frontier has the same active terms (text, type, language; as a
   // multiset, which the features, maxima over the terms, do not see the order of) in both releases (align/types.ts), and both releases' features share one set of
   // document frequencies, so its lexical features are the same in both: computed once, on the
@@ -274,15 +324,14 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     }
     return [r, c];
   };
-  const lexKey = (r: Release, c: number, text: string) => `${r === oldR ? 'o' : 'n'}${c}\u0001${text}`;
   const lexical = (r0: Release, label: TextForms, c0: number): Float64Array => {
     const [r, c] = lexicalSide(r0, c0);
-    const key = lexKey(r, c, label.text);
-    let v = lexCache.get(key);
+    const slot = slotOf(r, c);
+    let v = cached(label.text, slot);
     if (!v) {
       v = new Float64Array(LEXICAL_COUNT);
       (r === oldR ? oldFeatures : newFeatures).lexical(label, c, v);
-      lexCache.set(key, v);
+      cache(label.text, slot, v);
     }
     return v;
   };
@@ -351,32 +400,13 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   // 4. and, after training, the same for the searches they run only when a score falls short
   //    (searchesIfWeak, guessed from the trained scorer).
   // Answers to 2 to 4 go into lexCache; what was not asked is computed here, as without a worker.
-  const thread = startLexicalThread(df, jobs, options.thread);
-  const newBatch = (): LexicalBatch => ({ labels: [], termStart: new Int32Array(LEXICAL_BATCH + 1), terms: [] });
-  let batch = newBatch();
-  /** lexCache keys of each posted batch of 2 or 3 (undefined for a batch of jobs). */
-  const batchKeys: (string[] | undefined)[] = [];
-  let keys: string[] = [];
-  const post = () => {
-    if (batch.labels.length === 0) return;
-    thread!.post({ ...batch, termStart: batch.termStart.slice(0, batch.labels.length + 1) });
-    batchKeys.push(keys.length ? keys : undefined);
-    batch = newBatch();
-    keys = [];
-  };
-  const push = (text: string, r: Release, c: number) => {
-    batch.labels.push(text);
-    for (const term of activeTermsOf(r, c)) batch.terms.push(termTextAt(r, term));
-    batch.termStart[batch.labels.length] = batch.terms.length;
-  };
-  const asked = new Set<string>();
   /** Ask the worker for lexical(r, label, c), unless known or asked already. */
   const ask = (text: string, r0: Release, c0: number) => {
     const [r, c] = lexicalSide(r0, c0);
-    const key = lexKey(r, c, text);
-    if (asked.has(key) || lexCache.has(key)) return;
-    asked.add(key);
-    keys.push(key);
+    const slot = slotOf(r, c);
+    if (cached(text, slot) !== undefined) return;
+    cache(text, slot, null);
+    slots.push(slot);
     push(text, r, c);
     if (batch.labels.length === LEXICAL_BATCH) post();
   };
@@ -384,7 +414,8 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   const fill = (b: number) => {
     const result = thread!.take(b);
     if (!result) return;
-    batchKeys[b]!.forEach((key, k) => lexCache.set(key, result.features.subarray(k * LEXICAL_COUNT, (k + 1) * LEXICAL_COUNT)));
+    const labels = batchLabels[b]!;
+    batchSlots[b]!.forEach((slot, k) => cache(labels[k], slot, result.features.subarray(k * LEXICAL_COUNT, (k + 1) * LEXICAL_COUNT)));
   };
   /** Does assess search the whole release for this mapping whatever the scores (unknown, inactive, reused or retired without carrier)? */
   const searchesSurely = (t: Target): boolean => {
@@ -408,7 +439,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     if (h) for (const strong of [true, false]) for (const id of resolveHistory(h, newR, t.id, strong).targets) out.push(indexOf(newR, id) ?? -1);
     for (const s of retirementOf.get(t.id)?.evidence.suggestions ?? []) out.push(indexOf(newR, s.concept_id) ?? -1);
     const label = formsOf(t.labelText);
-    for (const key of [`f${label.folded}`, `l${label.lexical}`]) out.push(...(frontierText.get(key) ?? []));
+    for (const list of frontierHolding(label)) if (list) out.push(...list);
     return out.filter((n) => n >= 0 && isActive(newR, n));
   };
   /** Start the searches of `texts` (as search() runs them) on the index's worker; the returned function waits for their hits. */
@@ -422,25 +453,17 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     });
     post();
   };
-  let jobBatches = 0;
   let structureBatches = 0;
   const searchTexts: string[] = [];
   let takeHits: (() => IndexHit[][]) | undefined;
   if (thread) {
-    targets.forEach((t, i) => {
-      if (jobOf[i] < 0) return;
-      push(t.labelText, oldR, t.cOld!);
-      if (batch.labels.length === LEXICAL_BATCH) post();
-    });
-    post();
-    jobBatches = batchKeys.length;
     targets.forEach((t, i) => {
       if (jobOf[i] >= 0) return;
       if (t.cOld !== undefined) ask(t.labelText, oldR, t.cOld);
       for (const n of likely(t)) ask(t.labelText, newR, n);
     });
     post();
-    structureBatches = batchKeys.length - jobBatches;
+    structureBatches = batchSlots.length - jobBatches;
     const seen = new Set<string>();
     targets.forEach((t, i) => {
       if (jobOf[i] < 0 && searchesSurely(t) && !seen.has(t.labelText)) {
@@ -498,8 +521,8 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
       for (const t of resolveHistory(h, newR, id, false).targets) add(indexOf(newR, t), 'history_consider');
     };
     const addFrontier = (flows?: Map<number, number[]>) => {
-      for (const key of [`f${label.folded}`, `l${label.lexical}`]) {
-        for (const n of frontierText.get(key) ?? []) add(n, flows?.has(n) ? 'term_flow' : 'lexical_neighbour');
+      for (const list of frontierHolding(label)) {
+        if (list) for (const n of list) add(n, flows?.has(n) ? 'term_flow' : 'lexical_neighbour');
       }
     };
     const addSearch = () => {
@@ -819,7 +842,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   }
   const takeMaybe = maybeTexts.length ? searchAhead(maybeTexts) : undefined;
   if (takeHits) receiveHits(searchTexts, takeHits, (t, i) => jobOf[i] < 0 && searchesSurely(t));
-  const hitBatches = batchKeys.length;
+  const hitBatches = batchSlots.length;
   // Mappings that search last, so that the hits' features are on their way meanwhile.
   targets.forEach((t, i) => {
     if (jobOf[i] < 0 && !maybe[i] && !searchesSurely(t)) results[i] = assess(i);
@@ -829,7 +852,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   targets.forEach((t, i) => {
     if (jobOf[i] < 0 && searchesSurely(t)) results[i] = assess(i);
   });
-  for (let b = hitBatches; b < batchKeys.length; b++) fill(b);
+  for (let b = hitBatches; b < batchSlots.length; b++) fill(b);
   targets.forEach((t, i) => {
     if (maybe[i]) results[i] = assess(i);
   });
