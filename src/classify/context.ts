@@ -21,7 +21,7 @@ import { alignTerms, activeTerms } from '../align/alignTerms.js';
 import type { Alignment } from '../align/types.js';
 import { foldTerm, lexicalKey } from '../text/normalize.js';
 import { levenshteinSimilarity, tokenJaccard } from '../text/similarity.js';
-import type { ConceptIndex, IndexHit } from '../rescore/conceptIndex.js';
+import type { ConceptIndex, IndexHit, TermWordLists } from '../rescore/conceptIndex.js';
 import { startConceptIndex, takeConceptIndex, type SearchQuery } from '../rescore/indexThread.js';
 import { DEFAULT_THRESHOLDS, type Thresholds } from './thresholds.js';
 import type { FlowCell, HistoryEvidence } from './types.js';
@@ -89,6 +89,8 @@ export interface DiffContext {
   newIndex(): ConceptIndex;
   /** Searches of that index started now, answered later (on the index's worker thread when it has one). */
   searchAhead(queries: SearchQuery[]): () => IndexHit[][];
+  /** That index's vocabulary and forward lists, in shared memory, when at hand without waiting (IndexHandle.ready). */
+  newIndexWords(): TermWordLists | undefined;
 }
 
 export const isActive = (r: Release, c: number) => r.conceptStatus[c] === ACTIVE;
@@ -293,7 +295,7 @@ export function buildContext(input: DiffInput): DiffContext {
     }
   }
 
-  return { input, old: oldR, new: newR, align, thresholds, olds, news, groups, newIndex: index.get, searchAhead: index.searchAhead };
+  return { input, old: oldR, new: newR, align, thresholds, olds, news, groups, newIndex: index.get, searchAhead: index.searchAhead, newIndexWords: index.ready };
 }
 
 /** Flow cells of a set of old concepts into a set of new concepts (active terms). */

@@ -118,6 +118,22 @@ export interface IndexParts {
   termWords: Int32Array;
 }
 
+/** The vocabulary and forward lists of an index: enough to read the words of an indexed term (termStems). */
+export type TermWordLists = Pick<IndexParts, 'words' | 'termStart' | 'termWords'>;
+
+/**
+ * The words of indexed term t (active, of an active concept), sorted: the tokens of its lexical
+ * key, which is their join by single spaces (text/normalize.ts, lexicalKey: stems of the tokens
+ * that are not stop words, sorted, without repeats; the folded text for a term of stop words
+ * only, '' for an empty one). Read from the index's forward list, without tokenising or stemming
+ * the text again (tests/rescore/conceptIndex.test.ts checks it against lexicalKey).
+ */
+export function termStems(lists: TermWordLists, t: number): string[] {
+  const out: string[] = [];
+  for (let k = lists.termStart[t]; k < lists.termStart[t + 1]; k++) out.push(lists.words[lists.termWords[k]]);
+  return out.sort();
+}
+
 /** The index source of a release. */
 export function indexSource(release: Release): IndexSource {
   const active = new Uint8Array(release.termCount);

@@ -32,6 +32,7 @@ import { termTextAt, termTextBytes } from '../load/releaseBytes.js';
 import { jaroWinkler, levenshteinSimilarity, trigramDice } from '../text/similarity.js';
 import { DocumentFrequencies, tfidfCosine } from '../text/tfidf.js';
 import { HierarchyGraph, graphOf, sameParentNodes } from '../load/hierarchyGraph.js';
+import { termStems, type TermWordLists } from './conceptIndex.js';
 
 export const LEXICAL_FEATURES = ['exact', 'folded', 'lexical', 'tfidf', 'trigram', 'jaro_winkler', 'levenshtein'] as const;
 export const CONTEXT_FEATURES = ['category_same', 'category_differs', 'hierarchy_shared', 'hierarchy_unrelated'] as const;
@@ -133,9 +134,14 @@ export interface TermEntry {
   stems?: string[];
 }
 
-/** The entry of term `term` with text `text`. */
-export function termEntry(term: number, text: string): TermEntry {
-  return { term, nfc: text.normalize('NFC'), folded: foldTerm(text) };
+/** The entry of term `term` with text `text`; `stems`, when given, are those of its lexical key (termStems of an index), which is then not computed again. */
+export function termEntry(term: number, text: string, stems?: string[]): TermEntry {
+  const e: TermEntry = { term, nfc: text.normalize('NFC'), folded: foldTerm(text) };
+  if (stems) {
+    e.lexical = stems.join(' ');
+    e.stems = stems;
+  }
+  return e;
 }
 
 /** Result of the lexical comparison of a label with a concept. */
@@ -153,17 +159,23 @@ export class ReleaseFeatures {
   readonly release: Release;
   readonly df: DocumentFrequencies;
   private readonly cache = new Map<number, TermEntry[]>();
+  /** The word lists of the release's index, when at hand: the stems of its indexed terms are read there (termStems). */
+  private readonly lists: TermWordLists | undefined;
 
-  constructor(release: Release, df: DocumentFrequencies) {
+  constructor(release: Release, df: DocumentFrequencies, lists?: TermWordLists) {
     this.release = release;
     this.df = df;
+    this.lists = lists;
   }
 
   /** Active terms of concept c with their NFC and folded forms (cached). */
   private terms(c: number): TermEntry[] {
     let entry = this.cache.get(c);
     if (!entry) {
-      entry = activeTermsOf(this.release, c).map((t) => termEntry(t, termTextAt(this.release, t)));
+      const r = this.release;
+      // The index holds the active terms of active concepts.
+      const lists = r.conceptStatus[c] === ACTIVE ? this.lists : undefined;
+      entry = activeTermsOf(r, c).map((t) => termEntry(t, termTextAt(r, t), lists && termStems(lists, t)));
       this.cache.set(c, entry);
     }
     return entry;

@@ -27,7 +27,7 @@
 import { existsSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import type { Release } from '../load/types.js';
-import { ConceptIndex, indexSource, type ConceptIndexOptions, type IndexHit, type IndexParts } from './conceptIndex.js';
+import { ConceptIndex, indexSource, type ConceptIndexOptions, type IndexHit, type IndexParts, type TermWordLists } from './conceptIndex.js';
 import { startAnswering, type WorkerAnswers } from './workerAnswers.js';
 import { searchClaimed } from './indexServer.js';
 import type { MessagePort } from 'node:worker_threads';
@@ -52,6 +52,12 @@ export interface IndexHandle {
    * run there while this thread goes on; otherwise on this thread, when the hits are asked for.
    */
   searchAhead(queries: SearchQuery[]): () => IndexHit[][];
+  /**
+   * The index's vocabulary and forward lists when they are in shared memory and at hand without
+   * waiting (the worker has said it is built), else undefined. The worker goes on serving searches.
+   * Another thread may read terms' stems from them (termStems: re-scoring's lexical worker does).
+   */
+  ready(): TermWordLists | undefined;
 }
 
 /** Releases of fewer terms are indexed on the main thread (starting a worker costs about 50 ms). */
@@ -94,6 +100,7 @@ export function startConceptIndex(release: Release, options: IndexThreadOptions 
       let hits: IndexHit[][] | undefined;
       return () => (hits ??= runHere(here, queries));
     },
+    ready: () => undefined,
   };
   const wanted = thread ?? release.termCount >= THREAD_FROM_TERMS;
   const script = wanted ? workerScript() : undefined;
@@ -141,6 +148,7 @@ function indexHandle(release: Release, indexOptions: ConceptIndexOptions, answer
       let hits: IndexHit[][] | undefined;
       return () => (hits ??= runHere(here, queries));
     },
+    ready: () => undefined,
   };
   const next = () => answers.next();
   let built: boolean | undefined;
@@ -189,6 +197,11 @@ function indexHandle(release: Release, indexOptions: ConceptIndexOptions, answer
         answers.stop();
       }
       return here();
+    },
+    ready() {
+      // The first answer says whether the worker built; it is read only when it is there.
+      if (built === undefined && answers.alive && answers.posted() > 0) waitBuilt();
+      return built ? shared : undefined;
     },
     searchAhead(queries) {
       if (!answers.alive) return local.searchAhead(queries);

@@ -23,14 +23,20 @@
 import { existsSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import type { DocumentFrequencies } from '../text/tfidf.js';
+import { termStems, type TermWordLists } from './conceptIndex.js';
 import { startAnswering } from './workerAnswers.js';
 import { LEXICAL_COUNT, lexicalOfTerms, termEntry, textForms, type TermEntry } from './features.js';
 
-/** One batch of jobs: job i compares labels[i] with terms[termStart[i] .. termStart[i+1]). */
+/**
+ * One batch of jobs: job i compares labels[i] with terms[termStart[i] .. termStart[i+1]).
+ * `termIds[k]`, when given, is the number of terms[k] in the index whose word lists come with the
+ * thread (startLexicalThread's `lists`), or -1: its stems are read there (termStems).
+ */
 export interface LexicalBatch {
   labels: string[];
   termStart: Int32Array;
   terms: string[];
+  termIds?: Int32Array;
 }
 
 /** A batch as posted: with its claim (0 free, WORKER or HERE: the thread that computes it). */
@@ -50,8 +56,8 @@ export interface LexicalResult {
 
 export type LexicalAnswer = LexicalResult | { skipped: true } | { error: string };
 
-/** The answer to a batch, computed on this thread: what the worker computes for it. */
-export function lexicalBatch(b: LexicalBatch, df: DocumentFrequencies, onJob?: (i: number) => void): LexicalResult {
+/** The answer to a batch, computed on this thread: what the worker computes for it (`lists`: the index word lists that b.termIds refer to). */
+export function lexicalBatch(b: LexicalBatch, df: DocumentFrequencies, lists?: TermWordLists, onJob?: (i: number) => void): LexicalResult {
   const n = b.labels.length;
   const features = new Float64Array(n * LEXICAL_COUNT);
   const forms: string[] = new Array(n * 3);
@@ -59,7 +65,10 @@ export function lexicalBatch(b: LexicalBatch, df: DocumentFrequencies, onJob?: (
     onJob?.(i);
     const label = textForms(b.labels[i]);
     const entries: TermEntry[] = [];
-    for (let k = b.termStart[i]; k < b.termStart[i + 1]; k++) entries.push(termEntry(k, b.terms[k]));
+    for (let k = b.termStart[i]; k < b.termStart[i + 1]; k++) {
+      const id = lists && b.termIds ? b.termIds[k] : -1;
+      entries.push(termEntry(k, b.terms[k], id >= 0 ? termStems(lists!, id) : undefined));
+    }
     lexicalOfTerms(label, entries, df, features, i * LEXICAL_COUNT);
     forms[3 * i] = label.nfc;
     forms[3 * i + 1] = label.folded;
@@ -95,11 +104,12 @@ function workerScript(): URL | undefined {
  * A worker for `jobs` jobs with document frequencies `df`, or undefined when the work is better
  * done here (`thread`: true whenever a worker can start, false never; default from THREAD_FROM_JOBS).
  */
-export function startLexicalThread(df: DocumentFrequencies, jobs: number, thread?: boolean): LexicalThread | undefined {
+export function startLexicalThread(df: DocumentFrequencies, jobs: number, thread?: boolean, lists?: TermWordLists): LexicalThread | undefined {
   if (jobs === 0 || !(thread ?? jobs >= THREAD_FROM_JOBS)) return undefined;
   const script = workerScript();
   if (script === undefined) return undefined;
-  const started = startAnswering<LexicalAnswer>(script, { df: df.toParts() }, [], STALL_SECONDS);
+  // The word lists' typed arrays are in shared memory (the index thread built them): not copied.
+  const started = startAnswering<LexicalAnswer>(script, { df: df.toParts(), lists }, [], STALL_SECONDS);
   if (!started) return undefined;
   const { answers, port } = started;
   /** Batches posted and not yet answered (kept to be computed here if the worker has not started them). */
@@ -122,7 +132,7 @@ export function startLexicalThread(df: DocumentFrequencies, jobs: number, thread
     for (let j = posted.length - 1; j >= read; j--) {
       const b = posted[j];
       if (b === undefined || Atomics.compareExchange(b.claim, 0, 0, HERE) !== 0) continue;
-      got[j] = lexicalBatch(b, df);
+      got[j] = lexicalBatch(b, df, lists);
       posted[j] = undefined;
       threadStats.takenHere++;
       return true;

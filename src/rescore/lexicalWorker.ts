@@ -7,8 +7,9 @@ import { workerData, type MessagePort } from 'node:worker_threads';
 import { DocumentFrequencies } from '../text/tfidf.js';
 import { WORKER, lexicalBatch, type LexicalAnswer, type PostedBatch } from './lexicalThread.js';
 import { answerer } from './workerAnswers.js';
+import type { TermWordLists } from './conceptIndex.js';
 
-const d = workerData as { df: Parameters<typeof DocumentFrequencies.fromParts>[0]; state: Int32Array; port: MessagePort };
+const d = workerData as { df: Parameters<typeof DocumentFrequencies.fromParts>[0]; lists?: TermWordLists; state: Int32Array; port: MessagePort };
 const { beat, answer } = answerer(d.state, d.port);
 const df = DocumentFrequencies.fromParts(d.df);
 
@@ -19,7 +20,7 @@ d.port.on('message', (b: PostedBatch) => {
       answer({ skipped: true } satisfies LexicalAnswer);
       return;
     }
-    const result = lexicalBatch(b, df, (i) => {
+    const result = lexicalBatch(b, df, d.lists, (i) => {
       if ((i & 255) === 0) beat();
     });
     answer(result satisfies LexicalAnswer, [result.features.buffer as ArrayBuffer]);

@@ -20,6 +20,9 @@
  * search. Label forms, per-concept term forms and searches (by label text) are cached. On a
  * large set the lexical features go to a worker thread (./lexicalThread.ts) while this thread
  * trains the scorer; the results do not depend on it (tests/rescore/lexicalThread.test.ts).
+ * When the index thread has built the new release's index in shared memory, the stems of the new
+ * release's active terms are read from its forward lists (termStems) on both threads, instead of
+ * tokenising and stemming each term again; jobs are sent with the new concept's terms for that.
  */
 import { conceptIndexOf, termTextAt } from '../load/releaseBytes.js';
 import { graphOf, sameParentNodes } from '../load/hierarchyGraph.js';
@@ -208,23 +211,57 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   targets.forEach((t, i) => {
     if (t.cOld !== undefined && t.cNew !== undefined && isActive(oldR, t.cOld) && !ctx.olds.has(t.cOld) && !ctx.news.has(t.cNew)) jobOf[i] = jobs++;
   });
-  const thread = startLexicalThread(df, jobs, options.thread);
+  let oldOfNew: Int32Array | undefined;
+  /** The old concept of new concept n when n is outside the changed frontier (same id, status and active terms; see lexicalSide), else -1. */
+  const unchangedOld = (n: number): number => {
+    if (ctx.news.has(n)) return -1;
+    if (!oldOfNew) {
+      oldOfNew = new Int32Array(newR.conceptCount).fill(-1);
+      ctx.align.sameId.forEach((k, c) => {
+        if (k >= 0) oldOfNew![k] = c;
+      });
+    }
+    const c = oldOfNew[n];
+    return c >= 0 && !ctx.olds.has(c) && oldR.conceptStatus[c] === newR.conceptStatus[n] ? c : -1;
+  };
+  // The new release's index word lists, when the index thread has built them: the worker reads
+  // the stems of the new release's active terms there instead of stemming their texts again.
+  const lists = ctx.newIndexWords();
+  const thread = startLexicalThread(df, jobs, options.thread, lists);
   const newBatch = (): LexicalBatch => ({ labels: [], termStart: new Int32Array(LEXICAL_BATCH + 1), terms: [] });
   let batch = newBatch();
+  /** Index numbers of batch.terms (-1: not in the index), when there are word lists. */
+  let termIds: number[] = [];
   /** lexCache slots (see slotOf) of each posted batch of 2 or 3, beside batch.labels (undefined for a batch of jobs). */
   const batchSlots: (number[] | undefined)[] = [];
   const batchLabels: (string[] | undefined)[] = [];
   let slots: number[] = [];
   const post = () => {
     if (batch.labels.length === 0) return;
-    thread!.post({ ...batch, termStart: batch.termStart.slice(0, batch.labels.length + 1) });
+    thread!.post({ ...batch, termStart: batch.termStart.slice(0, batch.labels.length + 1), termIds: lists ? Int32Array.from(termIds) : undefined });
+    termIds = [];
     batchSlots.push(slots.length ? slots : undefined);
     batchLabels.push(slots.length ? batch.labels : undefined);
     batch = newBatch();
     slots = [];
   };
-  const push = (text: string, r: Release, c: number) => {
+  const push = (text: string, r0: Release, c0: number) => {
     batch.labels.push(text);
+    let r = r0;
+    let c = c0;
+    if (lists) {
+      // An old concept outside the changed frontier has the same active terms in the new release
+      // (as lexicalSide has it the other way round): those are sent, with their index numbers.
+      if (r === oldR) {
+        const n = ctx.align.sameId[c];
+        if (n >= 0 && unchangedOld(n) === c) {
+          r = newR;
+          c = n;
+        }
+      }
+      const indexed = r === newR && isActive(newR, c);
+      for (const term of activeTermsOf(r, c)) termIds.push(indexed ? term : -1);
+    }
     for (const term of activeTermsOf(r, c)) batch.terms.push(termTextAt(r, term));
     batch.termStart[batch.labels.length] = batch.terms.length;
   };
@@ -304,18 +341,6 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   // multiset, which the features, maxima over the terms, do not see the order of) in both releases (align/types.ts), and both releases' features share one set of
   // document frequencies, so its lexical features are the same in both: computed once, on the
   // old concept. (Most mappings point at such concepts.)
-  let oldOfNew: Int32Array | undefined;
-  const unchangedOld = (n: number): number => {
-    if (ctx.news.has(n)) return -1;
-    if (!oldOfNew) {
-      oldOfNew = new Int32Array(newR.conceptCount).fill(-1);
-      ctx.align.sameId.forEach((k, c) => {
-        if (k >= 0) oldOfNew![k] = c;
-      });
-    }
-    const c = oldOfNew[n];
-    return c >= 0 && !ctx.olds.has(c) && oldR.conceptStatus[c] === newR.conceptStatus[n] ? c : -1;
-  };
   /** Where lexical(r, label, c) is computed: on the old concept when c is a new concept outside the frontier (both releases' features share the scorer's document frequencies). */
   const lexicalSide = (r: Release, c: number): [Release, number] => {
     if (r === newR) {
@@ -474,9 +499,9 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     if (searchTexts.length) takeHits = searchAhead(searchTexts);
   }
 
-  const scorer = options.scorer ?? trainScorer(newR, { hierarchy: newH, index: ctx.newIndex, categoryShiftShare: categoryShiftShare(ctx), df, ...options.training });
+  const scorer = options.scorer ?? trainScorer(newR, { hierarchy: newH, index: ctx.newIndex, categoryShiftShare: categoryShiftShare(ctx), df, words: lists, ...options.training });
   const oldFeatures = scorer.features(oldR);
-  const newFeatures = scorer.features(newR);
+  const newFeatures = scorer.features(newR, lists);
 
   const newLabel = (n: number) => conceptLabel(newR, n);
   /** Folded forms of every term of new concept n (any status), once per concept. */

@@ -29,7 +29,7 @@ import type { Hierarchy, Release } from '../load/types.js';
 import { graphOf } from '../load/hierarchyGraph.js';
 import { ACTIVE } from '../load/types.js';
 import type { DocumentFrequencies } from '../text/tfidf.js';
-import { ConceptIndex } from './conceptIndex.js';
+import { ConceptIndex, type TermWordLists } from './conceptIndex.js';
 import {
   AncestorIndex, FEATURES, FEATURE_COUNT, LEXICAL_COUNT, ReleaseFeatures, activeTermsOf, conceptContext, contextFeatures,
   releaseDocumentFrequencies, textForms,
@@ -79,6 +79,8 @@ export interface TrainOptions {
   dfTerms?: number;
   /** Document frequencies to use instead of counting them on the release (re-scoring counts them first, for its worker). */
   df?: DocumentFrequencies;
+  /** The word lists of the release's index (DiffContext.newIndexWords), when at hand: terms' stems are read there. */
+  words?: TermWordLists;
 }
 
 const DEFAULTS = { pairs: 20_000, holdOut: 0.25, seed: 1, l2: 1, hardShare: 0.5, neighbourShare: 0.25, neighbourContextShare: 0.25, categoryShiftShare: 0.02, leaveOutShare: 0.5, hitsPerQuery: 5, poolConcepts: 2_000, dfTerms: 100_000 };
@@ -96,11 +98,11 @@ export class Scorer {
     this.info = info;
   }
 
-  /** Lexical feature computer for a release (cached per release). */
-  features(r: Release): ReleaseFeatures {
+  /** Lexical feature computer for a release (cached per release; `lists`: the word lists of r's index, on first call). */
+  features(r: Release, lists?: TermWordLists): ReleaseFeatures {
     let f = this.perRelease.get(r);
     if (!f) {
-      f = new ReleaseFeatures(r, this.df);
+      f = new ReleaseFeatures(r, this.df, lists);
       this.perRelease.set(r, f);
     }
     return f;
@@ -297,7 +299,7 @@ export function trainScorer(release: Release, options: TrainOptions = {}): Score
   if (eligible.length < 2) throw new RangeError(`trainScorer: release ${release.label} has ${eligible.length} active concept(s) with terms; at least 2 are needed to learn anything`);
 
   const df = o.df ?? releaseDocumentFrequencies(release, o.dfTerms);
-  const feats = new ReleaseFeatures(release, df);
+  const feats = new ReleaseFeatures(release, df, o.words);
   const ancestors = o.hierarchy ? new AncestorIndex(o.hierarchy) : undefined;
   // A small release gives few distinct pairs: more draws would only repeat them.
   const pairs = Math.min(o.pairs, Math.max(20, 8 * eligible.length));

@@ -4,7 +4,12 @@
  */
 import { describe, expect, it } from 'vitest';
 import { loadRelease } from '../../src/load/index.js';
-import { ConceptIndex, buildIndexParts, indexSource } from '../../src/rescore/conceptIndex.js';
+import { ConceptIndex, buildIndexParts, indexSource, termStems } from '../../src/rescore/conceptIndex.js';
+import { termTextAt } from '../../src/load/releaseBytes.js';
+import { lexicalKey } from '../../src/text/normalize.js';
+import { generateDataset } from '../../src/gen/dataset.js';
+import { writeDataset } from '../../src/gen/writeDataset.js';
+import { ACTIVE } from '../../src/load/types.js';
 import { CLAIM_CHUNK, searchClaimed } from '../../src/rescore/indexServer.js';
 import { tempDir, tsv, writeFile } from '../helpers/files.js';
 
@@ -76,5 +81,38 @@ describe('an index in shared memory, searched by two threads', () => {
     expect(claim[0]).toBeGreaterThanOrEqual(queries.length);
     // Nothing is left for a second call.
     expect(searchClaimed(index, queries, claim, () => { throw new Error('searched twice'); })).toBe(0);
+  });
+});
+
+describe('termStems: the lexical key read from the index', () => {
+  // Re-scoring reads the stems of indexed terms from the forward lists instead of stemming their
+  // texts again; the features are the same only if the sorted words are the key's tokens.
+  it('the sorted words of every indexed term join to its lexical key (hand-made terms)', async () => {
+    const texts = [
+      'Fracture of femur', 'femur, fracture of', 'Blood blood pressure', 'Of the', 'and', 'Ménière’s disease', "Crohn's disease",
+      'ΟΔΟΣ', 'Rh+ blood group', 'HIV-1 antibody', '0.5 mg tablet', 'Straße', 'Tests   with  spaces', 'Kidney; renal — chronic', 'x',
+    ];
+    const r = await release(texts.map((t, k) => [id(k), t, 'preferred']));
+    const parts = buildIndexParts(indexSource(r));
+    for (let t = 0; t < r.termCount; t++) expect(termStems(parts, t).join(' ')).toBe(lexicalKey(termTextAt(r, t)));
+    // Not a tautology: repeats are dropped and the words sorted, as in the key.
+    const t = texts.indexOf('Blood blood pressure');
+    expect(termStems(parts, t)).toEqual(['blood', 'pressur']);
+    expect(termStems(parts, texts.indexOf('Of the'))).toEqual(['of the']);
+  });
+
+  it('so do those of a generated release, built in shared memory from the loader bytes', async () => {
+    const { paths } = await writeDataset(tempDir(), generateDataset({ concepts: 1200, seed: 5 }));
+    const r = await loadRelease(paths.new, { order: 'canonical' });
+    const src = indexSource(r);
+    expect(src.bytes).toBeDefined(); // the byte tokenizer's path, as on large releases
+    const parts = buildIndexParts(src, undefined, true);
+    let indexed = 0;
+    for (let t = 0; t < r.termCount; t++) {
+      if (r.termStatus[t] !== ACTIVE || r.conceptStatus[r.termConcept[t]] !== ACTIVE) continue;
+      indexed++;
+      expect(termStems(parts, t).join(' ')).toBe(lexicalKey(termTextAt(r, t)));
+    }
+    expect(indexed).toBeGreaterThan(3000);
   });
 });

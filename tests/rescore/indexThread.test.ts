@@ -9,7 +9,7 @@ import { tempDir } from '../helpers/files.js';
 
 const dist = '../../dist/';
 const { loadRelease } = (await import(`${dist}load/index.js`)) as typeof import('../../src/load/index.js');
-const { ConceptIndex } = (await import(`${dist}rescore/conceptIndex.js`)) as typeof import('../../src/rescore/conceptIndex.js');
+const { ConceptIndex, buildIndexParts, indexSource } = (await import(`${dist}rescore/conceptIndex.js`)) as typeof import('../../src/rescore/conceptIndex.js');
 const { startConceptIndex, threadStats } = (await import(`${dist}rescore/indexThread.js`)) as typeof import('../../src/rescore/indexThread.js');
 const { termTextAt } = (await import(`${dist}load/releaseBytes.js`)) as typeof import('../../src/load/releaseBytes.js');
 const { loadReleaseInThread } = (await import(`${dist}load/releaseThread.js`)) as typeof import('../../src/load/releaseThread.js');
@@ -42,6 +42,15 @@ describe('startConceptIndex', () => {
     expect(second()).toEqual(expected.slice(100));
     expect(first()).toEqual(expected.slice(0, 100));
     expect(threadStats.searchedThere + threadStats.searchedHere).toBe(searched + queries.length);
+    // The word lists, once built: the worker's shared arrays, which the worker goes on serving from.
+    const lists = handle.ready()!;
+    expect(lists.termWords.buffer).toBeInstanceOf(SharedArrayBuffer);
+    const plain = buildIndexParts(indexSource(newR));
+    expect(lists.words).toEqual(plain.words);
+    expect(Array.from(lists.termStart)).toEqual(Array.from(plain.termStart));
+    expect(Array.from(lists.termWords)).toEqual(Array.from(plain.termWords));
+    expect(threadStats.received).toBe(before);
+    expect(handle.searchAhead(queries.slice(0, 3))()).toEqual(expected.slice(0, 3));
     // … then the index itself, the worker's shared arrays, taken here.
     const fromThread = handle.get();
     expect(threadStats.received).toBe(before + 1);
@@ -50,7 +59,7 @@ describe('startConceptIndex', () => {
     expect(queries.map((q) => fromThread.search(q.texts, q.limit, q.skipConcept))).toEqual(expected);
     // Searches after that run here, outside the batches.
     expect(handle.searchAhead(queries.slice(0, 5))()).toEqual(expected.slice(0, 5));
-    expect(threadStats.searchedThere + threadStats.searchedHere).toBe(searched + queries.length);
+    expect(threadStats.searchedThere + threadStats.searchedHere).toBe(searched + queries.length + 3);
   }, 60_000);
 
   it('a small release is built on first need, on this thread', async () => {
@@ -60,6 +69,7 @@ describe('startConceptIndex', () => {
     const before = threadStats.received;
     const handle = startConceptIndex(r);
     expect(handle.get()).toBe(handle.get());
+    expect(handle.ready()).toBeUndefined(); // not in shared memory: no lists for another thread
     expect(threadStats.received).toBe(before);
     expect(handle.get().search([termTextAt(r, 0)], 1)[0].score).toBe(1);
     expect(handle.searchAhead([{ texts: [termTextAt(r, 0)], limit: 1, skipConcept: -1 }])()[0][0].score).toBe(1);

@@ -14,7 +14,10 @@ const { loadMappings } = (await import(`${dist}load/index.js`)) as typeof import
 const { rescoreMappings } = (await import(`${dist}rescore/rescoreMappings.js`)) as typeof import('../../src/rescore/rescoreMappings.js');
 const { startLexicalThread, threadStats, lexicalBatch } = (await import(`${dist}rescore/lexicalThread.js`)) as typeof import('../../src/rescore/lexicalThread.js');
 const { DocumentFrequencies } = (await import(`${dist}text/tfidf.js`)) as typeof import('../../src/text/tfidf.js');
-const { LEXICAL_COUNT, lexicalOfTerms, termEntry, textForms } = (await import(`${dist}rescore/features.js`)) as typeof import('../../src/rescore/features.js');
+const { LEXICAL_COUNT, lexicalOfTerms, termEntry, textForms, activeTermsOf } = (await import(`${dist}rescore/features.js`)) as typeof import('../../src/rescore/features.js');
+const { buildIndexParts, indexSource } = (await import(`${dist}rescore/conceptIndex.js`)) as typeof import('../../src/rescore/conceptIndex.js');
+const { termTextAt } = (await import(`${dist}load/releaseBytes.js`)) as typeof import('../../src/load/releaseBytes.js');
+const { loadRelease } = (await import(`${dist}load/index.js`)) as typeof import('../../src/load/index.js');
 
 describe('lexical features on a worker thread', () => {
   it('re-scoring a generated set gives the same results with and without the worker', async () => {
@@ -98,6 +101,62 @@ describe('lexical features on a worker thread', () => {
     thread.close();
     expect(threadStats.batches - before.batches + threadStats.takenHere - before.takenHere).toBe(batches.length);
     expect(threadStats.takenHere).toBeGreaterThan(before.takenHere);
+  });
+
+  it('re-scoring with the index word lists at hand (stems read there, on both threads) gives the same results', async () => {
+    const { paths } = await writeDataset(tempDir(), generateDataset({ concepts: 3000, seed: 6 }));
+    const inputs = await loadDiffInputs({ old: paths.old, new: paths.new, oldHierarchy: paths.oldHierarchy, newHierarchy: paths.newHierarchy, history: paths.history });
+    const set = await loadMappings(paths.mappings);
+    const run = (lists: boolean) => {
+      const { report, context } = diffReleases(inputs);
+      // A release this small is indexed on this thread, so the context has no shared lists of its own.
+      expect(context.newIndexWords()).toBeUndefined();
+      const parts = lists ? buildIndexParts(indexSource(context.new), undefined, true) : undefined;
+      return rescoreMappings({ ...context, newIndexWords: () => parts }, report.changes, set, { training: { seed: 3 }, thread: true });
+    };
+    const plain = run(false);
+    const before = { ...threadStats };
+    const withLists = run(true);
+    expect(threadStats.batches + threadStats.takenHere).toBeGreaterThan(before.batches + before.takenHere);
+    expect(withLists.scorer).toEqual(plain.scorer);
+    expect(withLists.mappings).toEqual(plain.mappings);
+  }, 120_000);
+
+  it('a batch with index numbers of its terms gives the answer of one without, on the worker too', async () => {
+    const { paths } = await writeDataset(tempDir(), generateDataset({ concepts: 800, seed: 8 }));
+    const r = await loadRelease(paths.new, { order: 'canonical' });
+    const lists = buildIndexParts(indexSource(r), undefined, true);
+    const df = new DocumentFrequencies();
+    const labels: string[] = [];
+    const terms: string[] = [];
+    const termIds: number[] = [];
+    const starts = [0];
+    for (let c = 0; c < r.conceptCount && labels.length < 300; c++) {
+      const ts = activeTermsOf(r, c);
+      if (ts.length === 0 || r.conceptStatus[c] !== 0) continue;
+      // A label made of another concept's words, so that the stems (TF-IDF, lexical key) decide.
+      labels.push(`${termTextAt(r, ts[0]).split(' ').reverse().join(' ')} ${c % 3 === 0 ? 'left' : ''}`);
+      for (const t of ts) {
+        terms.push(termTextAt(r, t));
+        termIds.push(t);
+        df.add(textForms(termTextAt(r, t)).stems);
+      }
+      starts.push(terms.length);
+    }
+    const termStart = Int32Array.from(starts);
+    const plain = lexicalBatch({ labels, termStart, terms }, df);
+    const indexed = lexicalBatch({ labels, termStart, terms, termIds: Int32Array.from(termIds) }, df, lists);
+    expect([...indexed.features]).toEqual([...plain.features]);
+    expect(indexed.forms).toEqual(plain.forms);
+    // Not all exact copies: the lexical level (stems) is what many of them match on.
+    const lexicalOnly = labels.filter((_, i) => plain.features[i * LEXICAL_COUNT + 1] === 0 && plain.features[i * LEXICAL_COUNT + 2] === 1).length;
+    expect(lexicalOnly).toBeGreaterThan(50);
+    const thread = startLexicalThread(df, 1, true, lists)!;
+    const k = thread.post({ labels, termStart: termStart.slice(), terms, termIds: Int32Array.from(termIds) });
+    while (thread.answered() === 0) await new Promise((res) => setTimeout(res, 10));
+    const there = thread.take(k)!;
+    thread.close();
+    expect([...there.features]).toEqual([...plain.features]);
   });
 
   it('few jobs stay on this thread unless asked', () => {
