@@ -33,8 +33,9 @@ import { conceptLabel } from '../classify/detector.js';
 import { foldTerm, lexicalKeyOfFolded } from '../text/normalize.js';
 import { trigramDice } from '../text/similarity.js';
 import type { Change, ChangeOf } from '../classify/types.js';
-import type { IndexHit } from './conceptIndex.js';
+import { termStems, type IndexHit } from './conceptIndex.js';
 import type { Mapping, MappingSet, Release } from '../load/types.js';
+import { ACTIVE } from '../load/types.js';
 import { impactOf } from '../rank/rankByImpact.js';
 import {
   AncestorIndex, FEATURE_COUNT, LEXICAL_COUNT, activeTermsOf, ancestorSetSimilarity, conceptContext, contextFeatures, releaseDocumentFrequencies, textForms,
@@ -307,7 +308,8 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     for (const t of node.terms) {
       const folded = foldTerm(termTextAt(newR, t));
       holding(frontierFolded, folded, node.n);
-      holding(frontierLexical, lexicalKeyOfFolded(folded), node.n);
+      // The lexical key of an indexed term (active, of an active concept) from the index's lists.
+      holding(frontierLexical, lists && newR.termStatus[t] === ACTIVE ? termStems(lists, t).join(' ') : lexicalKeyOfFolded(folded), node.n);
     }
   }
   /** Frontier concepts holding the label's folded form, then those holding its lexical key. */

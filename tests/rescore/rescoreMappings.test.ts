@@ -10,6 +10,7 @@ import type { MappingResult } from '../../src/rescore/types.js';
 import { loadPair, type PairSpec } from '../helpers/releases.js';
 import { tempDir, tsv, writeFile } from '../helpers/files.js';
 import { BASE, BASE_HIERARCHY } from './fixtures.js';
+import { buildIndexParts, indexSource } from '../../src/rescore/conceptIndex.js';
 
 async function check(spec: PairSpec, rows: [code: string, label: string, target: string][], content?: string, nearestSearch = true): Promise<Map<string, MappingResult>> {
   const inputs = await loadPair(spec);
@@ -105,6 +106,20 @@ describe('rescoreMappings verdicts', () => {
     const without = (await check(spec, rows, undefined, false)).get('L1')!;
     expect(without.verdict).toBe('broken');
     expect(without.suggestions.map((s) => s.concept_id)).not.toContain('B01');
+  });
+
+  it('a new concept holding the label in other words (same lexical key) is a candidate without a search, with the index word lists too', async () => {
+    // "Kidney cyst" and "Cyst of kidney" differ when folded and share the lexical key; the retired
+    // target's own term shares nothing with either, so only the changed frontier's text finds N1.
+    const inputs = await loadPair({ old: BASE + 'R1 disorder: Zymotic fever*', new: BASE + 'N1 disorder: Cyst of kidney*' });
+    const set = await loadMappings(writeFile(tempDir(), 'mappings.tsv', tsv([['local_code', 'local_label', 'target_id'], ['L1', 'Kidney cyst', 'R1']])));
+    const { report, context } = diffReleases(inputs);
+    const lists = buildIndexParts(indexSource(context.new), undefined, true);
+    for (const ctx of [context, { ...context, newIndexWords: () => lists }]) {
+      const [m] = rescoreMappings(ctx, report.changes, set, { training: { seed: 5 }, nearestSearch: false }).mappings;
+      expect(m.verdict).toBe('broken');
+      expect(m.suggestions.map((x) => [x.concept_id, x.reason])).toContainEqual(['N1', 'lexical_neighbour']);
+    }
   });
 
   it('drifted: a synonym the label was built from moved to another concept', async () => {
