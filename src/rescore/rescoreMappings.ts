@@ -250,20 +250,20 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     batch.labels.push(text);
     let r = r0;
     let c = c0;
-    if (lists) {
-      // An old concept outside the changed frontier has the same active terms in the new release
-      // (as lexicalSide has it the other way round): those are sent, with their index numbers.
-      if (r === oldR) {
-        const n = ctx.align.sameId[c];
-        if (n >= 0 && unchangedOld(n) === c) {
-          r = newR;
-          c = n;
-        }
+    // With word lists, an old concept outside the changed frontier is sent with its new concept's
+    // active terms (the same texts; lexicalSide has it the other way round), with their index numbers.
+    if (lists && r === oldR) {
+      const n = ctx.align.sameId[c];
+      if (n >= 0 && unchangedOld(n) === c) {
+        r = newR;
+        c = n;
       }
-      const indexed = r === newR && isActive(newR, c);
-      for (const term of activeTermsOf(r, c)) termIds.push(indexed ? term : -1);
     }
-    for (const term of activeTermsOf(r, c)) batch.terms.push(termTextAt(r, term));
+    const indexed = lists !== undefined && r === newR && isActive(newR, c);
+    for (const term of activeTermsOf(r, c)) {
+      batch.terms.push(termTextAt(r, term));
+      if (lists) termIds.push(indexed ? term : -1);
+    }
     batch.termStart[batch.labels.length] = batch.terms.length;
   };
   // The jobs go to the worker first, so that it starts on them while this thread prepares the rest.
