@@ -61,12 +61,13 @@ export function lexicalBatch(b: LexicalBatch, df: DocumentFrequencies, lists?: T
   const n = b.labels.length;
   const features = new Float64Array(n * LEXICAL_COUNT);
   const forms: string[] = new Array(n * 3);
+  const ids = lists ? b.termIds : undefined;
   for (let i = 0; i < n; i++) {
     onJob?.(i);
     const label = textForms(b.labels[i]);
     const entries: TermEntry[] = [];
     for (let k = b.termStart[i]; k < b.termStart[i + 1]; k++) {
-      const id = lists && b.termIds ? b.termIds[k] : -1;
+      const id = ids ? ids[k] : -1;
       entries.push(termEntry(k, b.terms[k], id >= 0 ? termStems(lists!, id) : undefined));
     }
     lexicalOfTerms(label, entries, df, features, i * LEXICAL_COUNT);

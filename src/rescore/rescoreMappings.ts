@@ -233,16 +233,14 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   let batch = newBatch();
   /** Index numbers of batch.terms (-1: not in the index), when there are word lists. */
   let termIds: number[] = [];
-  /** lexCache slots (see slotOf) of each posted batch of 2 or 3, beside batch.labels (undefined for a batch of jobs). */
-  const batchSlots: (number[] | undefined)[] = [];
-  const batchLabels: (string[] | undefined)[] = [];
+  /** Per posted batch: for a batch of 2 or 3, its labels and their lexCache slots (see slotOf); undefined for a batch of jobs. */
+  const posted: ({ labels: string[]; slots: number[] } | undefined)[] = [];
   let slots: number[] = [];
   const post = () => {
     if (batch.labels.length === 0) return;
     thread!.post({ ...batch, termStart: batch.termStart.slice(0, batch.labels.length + 1), termIds: lists ? Int32Array.from(termIds) : undefined });
     termIds = [];
-    batchSlots.push(slots.length ? slots : undefined);
-    batchLabels.push(slots.length ? batch.labels : undefined);
+    posted.push(slots.length ? { labels: batch.labels, slots } : undefined);
     batch = newBatch();
     slots = [];
   };
@@ -275,7 +273,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
       if (batch.labels.length === LEXICAL_BATCH) post();
     });
     post();
-    jobBatches = batchSlots.length;
+    jobBatches = posted.length;
   }
 
   // The old target's ancestors are compared with a new candidate's by the new hierarchy's nodes.
@@ -441,8 +439,8 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   const fill = (b: number) => {
     const result = thread!.take(b);
     if (!result) return;
-    const labels = batchLabels[b]!;
-    batchSlots[b]!.forEach((slot, k) => cache(labels[k], slot, result.features.subarray(k * LEXICAL_COUNT, (k + 1) * LEXICAL_COUNT)));
+    const { labels, slots: asked } = posted[b]!;
+    asked.forEach((slot, k) => cache(labels[k], slot, result.features.subarray(k * LEXICAL_COUNT, (k + 1) * LEXICAL_COUNT)));
   };
   /** Does assess search the whole release for this mapping whatever the scores (unknown, inactive, reused or retired without carrier)? */
   const searchesSurely = (t: Target): boolean => {
@@ -490,7 +488,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
       for (const n of likely(t)) ask(t.labelText, newR, n);
     });
     post();
-    structureBatches = batchSlots.length - jobBatches;
+    structureBatches = posted.length - jobBatches;
     const seen = new Set<string>();
     targets.forEach((t, i) => {
       if (jobOf[i] < 0 && searchesSurely(t) && !seen.has(t.labelText)) {
@@ -501,7 +499,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
     if (searchTexts.length) takeHits = searchAhead(searchTexts);
   }
 
-  const scorer = options.scorer ?? trainScorer(newR, { hierarchy: newH, index: ctx.newIndex, categoryShiftShare: categoryShiftShare(ctx), df, words: lists, ...options.training });
+  const scorer = options.scorer ?? trainScorer(newR, { hierarchy: newH, index: ctx.newIndex, categoryShiftShare: categoryShiftShare(ctx), df, lists, ...options.training });
   const oldFeatures = scorer.features(oldR);
   const newFeatures = scorer.features(newR, lists);
 
@@ -869,7 +867,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   }
   const takeMaybe = maybeTexts.length ? searchAhead(maybeTexts) : undefined;
   if (takeHits) receiveHits(searchTexts, takeHits, (t, i) => jobOf[i] < 0 && searchesSurely(t));
-  const hitBatches = batchSlots.length;
+  const hitBatches = posted.length;
   // Mappings that search last, so that the hits' features are on their way meanwhile.
   targets.forEach((t, i) => {
     if (jobOf[i] < 0 && !maybe[i] && !searchesSurely(t)) results[i] = assess(i);
@@ -879,7 +877,7 @@ export function rescoreMappings(ctx: DiffContext, changes: readonly Change[], ma
   targets.forEach((t, i) => {
     if (jobOf[i] < 0 && searchesSurely(t)) results[i] = assess(i);
   });
-  for (let b = hitBatches; b < batchSlots.length; b++) fill(b);
+  for (let b = hitBatches; b < posted.length; b++) fill(b);
   targets.forEach((t, i) => {
     if (maybe[i]) results[i] = assess(i);
   });

@@ -80,7 +80,7 @@ export interface TrainOptions {
   /** Document frequencies to use instead of counting them on the release (re-scoring counts them first, for its worker). */
   df?: DocumentFrequencies;
   /** The word lists of the release's index (DiffContext.newIndexWords), when at hand: terms' stems are read there. */
-  words?: TermWordLists;
+  lists?: TermWordLists;
 }
 
 const DEFAULTS = { pairs: 20_000, holdOut: 0.25, seed: 1, l2: 1, hardShare: 0.5, neighbourShare: 0.25, neighbourContextShare: 0.25, categoryShiftShare: 0.02, leaveOutShare: 0.5, hitsPerQuery: 5, poolConcepts: 2_000, dfTerms: 100_000 };
@@ -299,7 +299,7 @@ export function trainScorer(release: Release, options: TrainOptions = {}): Score
   if (eligible.length < 2) throw new RangeError(`trainScorer: release ${release.label} has ${eligible.length} active concept(s) with terms; at least 2 are needed to learn anything`);
 
   const df = o.df ?? releaseDocumentFrequencies(release, o.dfTerms);
-  const feats = new ReleaseFeatures(release, df, o.words);
+  const feats = new ReleaseFeatures(release, df, o.lists);
   const ancestors = o.hierarchy ? new AncestorIndex(o.hierarchy) : undefined;
   // A small release gives few distinct pairs: more draws would only repeat them.
   const pairs = Math.min(o.pairs, Math.max(20, 8 * eligible.length));
